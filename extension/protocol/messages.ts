@@ -92,7 +92,9 @@ export type WebviewMessage =
   | { type: 'requestConversation'; requestId: number; conversation: string }
   | { type: 'requestOverview'; requestId: number }
   | { type: 'requestTokenBoundaries'; requestId: number; line: number; segmentId: string }
-  | { type: 'revealLine'; line: number; segmentId?: string };
+  | { type: 'revealLine'; line: number; segmentId?: string }
+  /** A measurement from the panel for the host to log (firstPaintMs: script start → first turn view painted). */
+  | { type: 'metric'; name: 'firstPaintMs'; value: number };
 
 // ---------------------------------------------------------------- host → webview
 export type HostMessage =
