@@ -1,0 +1,151 @@
+/**
+ * `npm run gen -- --turns N --seed S [--out FILE] [--mb M]`: writes a deterministic sample log
+ * (see extension/core/sample/generator.ts) to stdout or, atomically (temp file + rename), to FILE.
+ */
+import { Command, InvalidArgumentError } from 'commander';
+import { createWriteStream, renameSync, rmSync, type WriteStream } from 'node:fs';
+import { basename, dirname, join } from 'node:path';
+import { LRUCache } from 'lru-cache';
+import { generateLog, type GeneratorOptions } from '../core/sample/generator';
+import { loadEncoder, type Encoder, type EncodingName } from '../core/tokens/encoder';
+
+function positiveInt(value: string): number {
+  const n = Number(value);
+  if (!Number.isInteger(n) || n < 0) throw new InvalidArgumentError('expected a non-negative integer');
+  return n;
+}
+function positiveNumber(value: string): number {
+  const n = Number(value);
+  if (!Number.isFinite(n) || n <= 0) throw new InvalidArgumentError('expected a positive number');
+  return n;
+}
+function rate(value: string): number {
+  const n = Number(value);
+  if (!Number.isFinite(n) || n < 0 || n > 1) throw new InvalidArgumentError('expected a number from 0 to 1');
+  return n;
+}
+
+interface GenFlags {
+  turns?: number;
+  seed: number;
+  out?: string;
+  mb?: number;
+  malformed: boolean;
+  malformedRate?: number;
+  usage: boolean;
+  concurrency?: number;
+  minTurns?: number;
+  maxTurns?: number;
+  progress: boolean;
+}
+
+/** Writes one chunk, waiting for the stream to drain so memory stays bounded. */
+function write(stream: NodeJS.WritableStream, chunk: string): Promise<void> | undefined {
+  if (stream.write(chunk)) return undefined;
+  return new Promise((resolve) => stream.once('drain', () => resolve()));
+}
+
+async function run(flags: GenFlags): Promise<void> {
+  const encoders = new Map<EncodingName, Encoder>();
+  if (flags.usage) for (const name of ['o200k_base', 'cl100k_base'] as const) encoders.set(name, await loadEncoder(name));
+  // History and passages repeat, so a bounded memo of counts keeps the usage figures cheap.
+  const memo = new LRUCache<string, number>({ max: 50_000 });
+  const count = (text: string, enc: EncodingName): number => {
+    const key = enc + '\u0000' + text;
+    let n = memo.get(key);
+    if (n === undefined) {
+      n = (encoders.get(enc) as Encoder).count(text);
+      memo.set(key, n);
+    }
+    return n;
+  };
+  const maxBytes = flags.mb === undefined ? undefined : Math.round(flags.mb * 1024 * 1024);
+  const options: GeneratorOptions = {
+    seed: flags.seed,
+    turns: flags.turns ?? (maxBytes === undefined ? 1000 : undefined),
+    maxBytes,
+    malformedRate: flags.malformed ? flags.malformedRate : 0,
+    count: flags.usage ? count : undefined,
+    concurrency: flags.concurrency,
+    minTurns: flags.minTurns,
+    maxTurns: flags.maxTurns,
+  };
+
+  let sink: NodeJS.WritableStream = process.stdout;
+  let file: WriteStream | undefined;
+  let temp: string | undefined;
+  if (flags.out) {
+    temp = join(dirname(flags.out), `.${basename(flags.out)}.${process.pid}.tmp`);
+    file = createWriteStream(temp);
+    sink = file;
+  }
+  const cleanUp = (): void => {
+    if (temp) rmSync(temp, { force: true });
+  };
+  // A closed pipe (e.g. `| head`) ends the run quietly.
+  process.stdout.on('error', (err: NodeJS.ErrnoException) => {
+    if (err.code === 'EPIPE') process.exit(0);
+    throw err;
+  });
+  process.once('SIGINT', () => {
+    cleanUp();
+    process.exit(130);
+  });
+
+  const showProgress = flags.progress && (maxBytes === undefined || maxBytes >= 10 * 1024 * 1024 || (flags.turns ?? 0) >= 20_000);
+  const started = Date.now();
+  let bytes = 0;
+  let lines = 0;
+  let nextReport = 16 * 1024 * 1024;
+  try {
+    for (const line of generateLog(options)) {
+      const chunk = line + '\n';
+      bytes += Buffer.byteLength(chunk);
+      lines++;
+      const wait = write(sink, chunk);
+      if (wait) await wait;
+      if (showProgress && bytes >= nextReport) {
+        nextReport += 16 * 1024 * 1024;
+        const s = (Date.now() - started) / 1000;
+        const target = maxBytes ? ` of ${(maxBytes / 1048576).toFixed(0)} MB` : '';
+        process.stderr.write(`gen: ${(bytes / 1048576).toFixed(0)} MB${target}, ${lines} lines, ${(bytes / 1048576 / s).toFixed(1)} MB/s\n`);
+      }
+    }
+    if (file && temp && flags.out) {
+      const f = file;
+      await new Promise<void>((resolve, reject) => f.end((err?: Error | null) => (err ? reject(err) : resolve())));
+      renameSync(temp, flags.out);
+      process.stderr.write(`gen: wrote ${lines} lines, ${(bytes / 1048576).toFixed(1)} MB to ${flags.out}\n`);
+    }
+  } catch (err) {
+    cleanUp();
+    throw err;
+  }
+}
+
+const program = new Command('gen')
+  .description('Write a deterministic sample Spillway log (format v1) with realistic repetition.')
+  .requiredOption('--seed <n>', 'seed of the generator (same seed, same bytes)', positiveInt)
+  .option('--turns <n>', 'number of lines (records) to write; default 1000, or unlimited with --mb', positiveInt)
+  .option('--mb <m>', 'stop after about M megabytes (MiB)', positiveNumber)
+  .option('--out <file>', 'write to FILE atomically (temp file beside it, then rename) instead of stdout')
+  .option('--malformed-rate <p>', 'probability that a line is malformed (default 1/50000)', rate)
+  .option('--no-malformed', 'write no malformed lines')
+  .option('--no-usage', 'write no API-style usage (skips token counting; faster)')
+  .option('--concurrency <n>', 'conversations open at once (records interleave)', positiveInt)
+  .option('--min-turns <n>', 'fewest turns per conversation (default 3)', positiveInt)
+  .option('--max-turns <n>', 'most turns per conversation (default 40)', positiveInt)
+  .option('--no-progress', 'no progress lines on stderr')
+  .action(async (flags: GenFlags) => {
+    try {
+      await run(flags);
+    } catch (err) {
+      process.stderr.write(`gen: ${(err as Error).message}\n`);
+      process.exitCode = 2;
+    }
+  });
+
+program.parseAsync(process.argv).catch((err: unknown) => {
+  process.stderr.write(`gen: ${(err as Error).message}\n`);
+  process.exitCode = 2;
+});
