@@ -1,0 +1,4 @@
+// `stopword` ships no type declarations; we use only its English list.
+declare module 'stopword' {
+  export const eng: string[];
+}
