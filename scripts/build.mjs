@@ -3,7 +3,8 @@ import { build } from 'esbuild';
 import { cp, mkdir } from 'node:fs/promises';
 import { existsSync } from 'node:fs';
 
-const common = { bundle: true, sourcemap: true, logLevel: 'warning', legalComments: 'none' };
+// mainFields: prefer ESM builds (jsonc-parser's UMD build hides its requires from the bundler).
+const common = { bundle: true, sourcemap: true, logLevel: 'warning', legalComments: 'none', mainFields: ['module', 'main'] };
 const nodeTargets = [
   { entryPoints: ['extension/host/extension.ts'], outfile: 'dist/extension.js', external: ['vscode'] },
   { entryPoints: ['extension/cli/main.ts'], outfile: 'dist/cli.js', banner: { js: '#!/usr/bin/env node' } },

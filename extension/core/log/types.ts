@@ -46,7 +46,7 @@ export interface FramingNumbers {
   perMessage: number;
   perName: number;
   priming: number;
-  /** Whether the role string itself is encoded and counted (true in the published chat rule). */
+  /** Whether the role (and name) strings are encoded and counted (true in the published chat rule). */
   countRole: boolean;
 }
 export type FramingSpec = 'chat' | 'none' | FramingNumbers;

@@ -1,0 +1,112 @@
+/** `spillway audit <log>`: the per-turn ledger as text, JSON (`spillway.audit/1`) or HTML. */
+import type { Command } from 'commander';
+import { auditStream } from '../../core/audit/audit';
+import { renderHtmlReport } from '../../core/audit/html';
+import { formatSummary, formatTable, TEXT_COLUMNS, textRow } from '../../core/audit/text';
+import type { AuditOptions, AuditReport, Ledger } from '../../core/audit/types';
+import { isEncodingName, ENCODINGS } from '../../core/tokens/encoder';
+import { parsePlan, PlanError } from '../../core/pack/plans';
+import { atomicWriter, EXIT, openLog, parseTokens, stdoutWriter, UsageError, type AtomicWriter } from '../io';
+
+export interface AuditCliOptions {
+  budget?: string;
+  reserve?: string;
+  encoding?: string;
+  plan?: string;
+  format: 'text' | 'json' | 'html';
+  out?: string;
+  failOnClippedTop?: boolean;
+  failOnOverBudget?: boolean;
+  failOnMalformed?: boolean;
+  maxLineBytes?: string;
+  quiet?: boolean;
+}
+
+/** Turns CLI strings into validated audit options (exit 2 on bad values). */
+export function auditOptionsFrom(o: { budget?: string; reserve?: string; encoding?: string; plan?: string }): AuditOptions {
+  const opts: AuditOptions = {};
+  if (o.budget !== undefined) opts.budget = parseTokens(o.budget, '--budget');
+  if (o.reserve !== undefined) opts.reserve = parseTokens(o.reserve, '--reserve');
+  if (o.encoding !== undefined) {
+    if (!isEncodingName(o.encoding)) throw new UsageError(`unknown encoding "${o.encoding}" (valid: ${ENCODINGS.join(', ')})`);
+    opts.encoding = o.encoding;
+  }
+  if (o.plan !== undefined) {
+    try {
+      opts.plan = parsePlan(o.plan).name;
+    } catch (e) {
+      if (e instanceof PlanError) throw new UsageError(e.message);
+      throw e;
+    }
+  }
+  return opts;
+}
+
+const TEXT_STREAM_AFTER = 2000;
+
+export async function runAudit(file: string, o: AuditCliOptions): Promise<number> {
+  if (!['text', 'json', 'html'].includes(o.format)) throw new UsageError(`--format must be text, json or html, got "${o.format}"`);
+  const opts = auditOptionsFrom(o);
+  const { chunks, size } = await openLog(file);
+  const out: AtomicWriter = o.out ? atomicWriter(o.out) : stdoutWriter();
+  const progress = !o.quiet && process.stderr.isTTY && size > 50e6;
+  try {
+    let report: AuditReport;
+    const read = o.maxLineBytes ? { maxLineBytes: parseTokens(o.maxLineBytes, '--max-line-bytes') } : undefined;
+    const onProgress = progress ? (done: number, bytes?: number) => bytes !== undefined && process.stderr.write(`\r${done} records, ${((100 * bytes) / size).toFixed(1)}%`) : undefined;
+    if (o.format === 'json') {
+      // Streamed: one record at a time, so a 1 GB log does not build a 1 GB report in memory.
+      let first = true;
+      await out.write(`{"schema":"spillway.audit/1","file":${JSON.stringify(file)},"options":${JSON.stringify(opts)},"records":[\n`);
+      report = await auditStream(chunks, { ...opts, file }, {
+        read,
+        onProgress,
+        onLedger: (l: Ledger) => {
+          out.push((first ? '' : ',\n') + JSON.stringify(l));
+          first = false;
+        },
+      });
+      await out.write(`\n],"errors":${JSON.stringify(report.errors)},"summary":${JSON.stringify(report.summary)}}\n`);
+    } else if (o.format === 'text') {
+      const rows: string[][] = [];
+      report = await auditStream(chunks, { ...opts, file }, { read, onProgress, onLedger: (l) => rows.push(textRow(l)) });
+      const shown = rows.length > TEXT_STREAM_AFTER ? rows.slice(0, TEXT_STREAM_AFTER) : rows;
+      await out.write(formatTable(shown, TEXT_COLUMNS) + '\n');
+      if (rows.length > shown.length) await out.write(`… ${rows.length - shown.length} more turns (use --format json for all of them)\n`);
+      await out.write('\n' + formatSummary(report.summary, report.errors) + '\n');
+    } else {
+      report = await auditStream(chunks, { ...opts, file }, { read, onProgress });
+      await out.write(renderHtmlReport(report));
+    }
+    if (progress) process.stderr.write('\n');
+    await out.commit();
+    if (o.out && !o.quiet) process.stderr.write(`wrote ${o.out}${o.format === 'html' ? ' (may contain personal data from the log: share with care)' : ''}\n`);
+    const s = report.summary;
+    if (o.failOnClippedTop && s.rank1Clipped + s.rank1Dropped > 0) return EXIT.threshold;
+    if (o.failOnOverBudget && s.overBudget > 0) return EXIT.threshold;
+    if (o.failOnMalformed && s.malformed > 0) return EXIT.threshold;
+    return EXIT.ok;
+  } catch (e) {
+    await out.abort();
+    throw e;
+  }
+}
+
+export function registerAudit(program: Command, setExit: (code: number) => void): void {
+  program
+    .command('audit')
+    .description('exact per-turn token ledger of a log: budget split, kept/clipped/dropped segments, cut points')
+    .argument('<log>', 'a Spillway log (.jsonl / .ndjson)')
+    .option('--budget <tokens>', 'what-if: budget in tokens (8192 or 8k); overrides window − reserve')
+    .option('--reserve <tokens>', 'what-if: output reserve in tokens')
+    .option('--encoding <name>', `what-if: tokenizer encoding (${ENCODINGS.join(', ')})`)
+    .option('--plan <plan>', 'what-if: packing plan (default: each record\'s own, else recent-first)')
+    .option('--format <format>', 'text, json or html', 'text')
+    .option('--out <file>', 'write the report here (atomically) instead of stdout')
+    .option('--fail-on-clipped-top', 'exit 1 if any turn clipped or dropped its rank-1 passage')
+    .option('--fail-on-over-budget', 'exit 1 if any turn is over budget')
+    .option('--fail-on-malformed', 'exit 1 if any line is malformed')
+    .option('--max-line-bytes <n>', 'skip (and report) lines longer than this')
+    .option('--quiet', 'no progress or notices on stderr')
+    .action(async (log: string, o: AuditCliOptions) => setExit(await runAudit(log, o)));
+}
