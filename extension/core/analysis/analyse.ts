@@ -27,7 +27,7 @@ import type {
 export const DEFAULT_ANALYSIS_SETTINGS: Readonly<AnalysisSettings> = Object.freeze<AnalysisSettings>({
   supportShare: 0.5,
   supportMinWords: 2,
-  sentenceMinWords: 2,
+  sentenceMinWords: 3,
   supportKinds: ['passage', 'tool'],
   shingleWords: 3,
   duplicateResemblance: 0.5,
