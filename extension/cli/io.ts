@@ -1,5 +1,5 @@
 /** CLI I/O: streaming file input, atomic output beside the target, exit codes. */
-import { createReadStream, createWriteStream, promises as fsp } from 'node:fs';
+import { createReadStream, createWriteStream, promises as fsp, statSync, type WriteStream } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { once } from 'node:events';
@@ -37,6 +37,14 @@ export interface AtomicWriter {
 
 export function atomicWriter(target: string): AtomicWriter {
   const abs = resolve(target);
+  // A device or pipe (/dev/null, /dev/stdout, a FIFO) is written in place: renaming over it would replace it.
+  let special = false;
+  try {
+    special = !statSync(abs).isFile();
+  } catch {
+    special = false;
+  }
+  if (special) return streamWriter(createWriteStream(abs, { flags: 'a' }));
   const tmp = join(dirname(abs), `.${basename(abs)}.${randomBytes(6).toString('hex')}.tmp`);
   const out = createWriteStream(tmp, { flags: 'wx' });
   let closed = false;
@@ -61,6 +69,24 @@ export function atomicWriter(target: string): AtomicWriter {
       await close().catch(() => undefined);
       await fsp.rm(tmp, { force: true });
     },
+  };
+}
+
+function streamWriter(out: WriteStream): AtomicWriter {
+  const close = async (): Promise<void> => {
+    if (out.closed) return;
+    out.end();
+    await once(out, 'close');
+  };
+  return {
+    async write(s) {
+      if (!out.write(s)) await once(out, 'drain');
+    },
+    push(s) {
+      out.write(s);
+    },
+    commit: close,
+    abort: close,
   };
 }
 
