@@ -86,11 +86,31 @@ export function parseRecordLine(text: string, line: number): { record: LogRecord
   return semantic ? { issue: semantic } : { record };
 }
 
+/** Plain words for jsonc-parser's error codes. */
+const JSON_REASONS: Record<string, string> = {
+  InvalidSymbol: 'unexpected character',
+  InvalidNumberFormat: 'malformed number',
+  PropertyNameExpected: 'expected a property name in double quotes',
+  ValueExpected: 'expected a value',
+  ColonExpected: "expected ':' after the property name",
+  CommaExpected: "expected ',' between items",
+  CloseBraceExpected: "expected '}' (the object is not closed)",
+  CloseBracketExpected: "expected ']' (the array is not closed)",
+  EndOfFileExpected: 'unexpected text after the end of the record',
+  InvalidCommentToken: 'comments are not allowed in JSON',
+  UnexpectedEndOfComment: 'comments are not allowed in JSON',
+  UnexpectedEndOfString: 'string is not closed',
+  UnexpectedEndOfNumber: 'number is cut short',
+  InvalidUnicode: 'invalid \\u escape',
+  InvalidEscapeCharacter: 'invalid escape sequence in a string',
+  InvalidCharacter: 'control character inside a string',
+};
+
 function jsonIssue(text: string, line: number, e: unknown): LogIssue {
   const errors: ParseError[] = [];
   lenientParse(text, errors, { disallowComments: true, allowTrailingComma: false, allowEmptyContent: false });
   const first = errors[0];
-  const reason = first ? printParseErrorCode(first.error).replace(/([a-z])([A-Z])/g, '$1 $2').toLowerCase() : (e as Error).message;
+  const reason = first ? (JSON_REASONS[printParseErrorCode(first.error)] ?? printParseErrorCode(first.error)) : (e as Error).message;
   const column = first ? first.offset + 1 : 1;
   return { line, column, code: 'bad-json', message: `bad JSON: ${reason}` };
 }

@@ -23,7 +23,7 @@ describe('malformed lines: line, column, plain-words reason; the rest still read
   // Each bad line sits between good lines; columns are 1-based character positions, counted by hand.
   const bad: Array<[string, string, number, RegExp]> = [
     // `{"v":1,` then a stray brace at character 8
-    ['{"v":1,}', 'bad-json', 8, /bad JSON/],
+    ['{"v":1,}', 'bad-json', 8, /bad JSON: expected a property name/],
     // missing "segments": reported at the object (column 1)
     ['{"v":1,"conversation":"c","turn":1,"model":{"name":"gpt-4","window":9,"reserve":1}}', 'missing-field', 1, /missing field "segments"/],
     // turn is a string: the value starts at character 34 ('{"v":1,"conversation":"c","turn":' is 33 characters)
