@@ -121,3 +121,8 @@ export function parsePlan(spec: string | undefined): PackingPlan {
   }
   throw new PlanError(`unknown packing plan "${s}" (valid: ${described.join(', ')})`);
 }
+
+// Composed plans (evidence-first, split:P, best-value, fusion:L, "+" modifiers): extension/core/pack/plans/.
+// Their modules only use this file's exports inside functions, so the import cycle is safe.
+import { composedPlanFactory, COMPOSED_PLANS_DESCRIPTION } from './plans/index';
+registerPlan(COMPOSED_PLANS_DESCRIPTION, composedPlanFactory);
