@@ -12,6 +12,7 @@ import { flattenTraces, importSpans, spanLinesOfDocument, spansOfLine } from './
 import type { FlatSpan } from './otlp';
 
 export type { ImportOptions, SplitterOptions, SplitterKind, LayoutMode } from './options';
+export { IMPORT_SETTINGS, importOptionsFromSettings } from './options';
 export type { RecordExplain } from './chat';
 export type { MessageExplain } from './messages';
 export { detectFormat } from './detect';

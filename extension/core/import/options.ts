@@ -111,7 +111,7 @@ export function resolveImportOptions(o: ImportOptions = {}): ResolvedImportOptio
     layout: o.layout ?? 'exact',
     passageRoles: o.passageRoles ?? DEFAULT_PASSAGE_ROLES,
     roleKinds: o.roleKinds ?? {},
-    roleAliases: { ...BUILT_IN_ROLE_ALIASES, ...(o.roleAliases ?? {}) },
+    roleAliases: { ...BUILT_IN_ROLE_ALIASES, ...Object.fromEntries(Object.entries(o.roleAliases ?? {}).map(([k, v]) => [k.toLowerCase(), v])) },
     queryMessage: o.queryMessage,
     window: o.window,
     reserve: o.reserve,
@@ -120,4 +120,89 @@ export function resolveImportOptions(o: ImportOptions = {}): ResolvedImportOptio
     model: o.model,
     sent: o.sent ?? 'all-kept',
   };
+}
+
+/**
+ * The `spillway.import.*` settings (for the host's `contributes.configuration`), one per option.
+ * Keys are relative to `spillway.import`.
+ */
+export const IMPORT_SETTINGS = {
+  splitter: { type: 'string', enum: ['auto', 'tag', 'numbered', 'separator', 'regex', 'none'], default: 'auto', description: 'How passages are found inside a chat message of an imported log.' },
+  tag: { type: 'string', default: DEFAULT_TAG, description: 'Tag name for the tag splitter: <doc id="…">…</doc>.' },
+  idAttribute: { type: 'string', default: 'id', description: 'Attribute holding the passage id for the tag splitter.' },
+  separator: { type: 'string', default: DEFAULT_SEPARATOR, description: 'Separator line for the separator splitter.' },
+  pattern: { type: 'string', default: '', description: 'Regular expression for the regex splitter, with named groups id, text and optional score.' },
+  layout: { type: 'string', enum: ['exact', 'split'], default: 'exact', description: 'exact: segments re-join to each message byte for byte; split: one segment per passage, separators normalised (reported).' },
+  passageRoles: { type: 'array', items: { type: 'string', enum: ['system', 'developer', 'user', 'assistant', 'tool'] }, default: [...DEFAULT_PASSAGE_ROLES], description: 'Roles whose messages are searched for passages.' },
+  roleKinds: { type: 'object', default: {}, description: 'Role → segment kind overrides, e.g. {"developer": "instructions"}.' },
+  roleAliases: { type: 'object', default: {}, description: 'Extra role spellings → role, e.g. {"bot": "assistant"}.' },
+  queryMessage: { type: ['number', 'null'], default: null, description: 'Index of the query message (negative counts from the end); empty: the last user message.' },
+  window: { type: 'number', default: DEFAULT_WINDOW, description: 'Context window for imported records (logs do not record it).' },
+  reserve: { type: 'number', default: DEFAULT_RESERVE, description: 'Output reserve when the request gives no max tokens.' },
+  encoding: { type: 'string', enum: ['', 'cl100k_base', 'o200k_base'], default: '', description: 'Encoding when the model name does not give one (empty: o200k_base).' },
+  sent: { type: 'string', enum: ['all-kept', 'none'], default: 'all-kept', description: 'all-kept: the logged request is what was sent; none: fates come from the packing plan.' },
+} as const;
+
+const SPLITTER_KINDS: readonly SplitterKind[] = ['auto', 'tag', 'numbered', 'separator', 'regex', 'none'];
+const KINDS: readonly SegmentKind[] = ['instructions', 'history', 'query', 'passage', 'tool'];
+const ROLE_NAMES: readonly Role[] = ['system', 'developer', 'user', 'assistant', 'tool'];
+
+/**
+ * Settings values (keys relative to `spillway.import`, e.g. from `getConfiguration('spillway.import')`)
+ * → ImportOptions. Values of the wrong type are ignored and named in `problems`.
+ */
+export function importOptionsFromSettings(get: (key: string) => unknown): { options: ImportOptions; problems: string[] } {
+  const problems: string[] = [];
+  const str = (k: string): string | undefined => {
+    const v = get(k);
+    if (v === undefined || v === null || v === '') return undefined;
+    if (typeof v === 'string') return v;
+    problems.push(`spillway.import.${k} must be a string`);
+    return undefined;
+  };
+  const num = (k: string): number | undefined => {
+    const v = get(k);
+    if (v === undefined || v === null) return undefined;
+    if (typeof v === 'number' && Number.isInteger(v)) return v;
+    problems.push(`spillway.import.${k} must be a whole number`);
+    return undefined;
+  };
+  const o: ImportOptions = {};
+  const kind = str('splitter') ?? 'auto';
+  if (!SPLITTER_KINDS.includes(kind as SplitterKind)) problems.push(`spillway.import.splitter "${kind}" is not one of ${SPLITTER_KINDS.join(', ')}`);
+  o.splitter = { kind: SPLITTER_KINDS.includes(kind as SplitterKind) ? (kind as SplitterKind) : 'auto', tag: str('tag'), idAttribute: str('idAttribute'), separator: str('separator'), pattern: str('pattern') };
+  const layout = str('layout');
+  if (layout === 'exact' || layout === 'split') o.layout = layout;
+  else if (layout !== undefined) problems.push(`spillway.import.layout "${layout}" is not exact or split`);
+  const roles = get('passageRoles');
+  if (Array.isArray(roles)) {
+    o.passageRoles = roles.filter((r): r is Role => ROLE_NAMES.includes(r as Role));
+    for (const r of roles) if (!ROLE_NAMES.includes(r as Role)) problems.push(`spillway.import.passageRoles: "${String(r)}" is not a role`);
+  }
+  const rk = get('roleKinds');
+  if (rk && typeof rk === 'object') {
+    o.roleKinds = {};
+    for (const [r, k] of Object.entries(rk as Record<string, unknown>)) {
+      if (ROLE_NAMES.includes(r as Role) && KINDS.includes(k as SegmentKind)) o.roleKinds[r as Role] = k as SegmentKind;
+      else problems.push(`spillway.import.roleKinds: "${r}": "${String(k)}" is not role: kind`);
+    }
+  }
+  const ra = get('roleAliases');
+  if (ra && typeof ra === 'object') {
+    o.roleAliases = {};
+    for (const [a, r] of Object.entries(ra as Record<string, unknown>)) {
+      if (ROLE_NAMES.includes(r as Role)) o.roleAliases[a.toLowerCase()] = r as Role;
+      else problems.push(`spillway.import.roleAliases: "${a}" must name one of ${ROLE_NAMES.join(', ')}`);
+    }
+  }
+  o.queryMessage = num('queryMessage');
+  o.window = num('window');
+  o.reserve = num('reserve');
+  const enc = str('encoding');
+  if (enc === 'cl100k_base' || enc === 'o200k_base') o.encoding = enc;
+  else if (enc !== undefined) problems.push(`spillway.import.encoding "${enc}" is not cl100k_base or o200k_base`);
+  const sent = str('sent');
+  if (sent === 'all-kept' || sent === 'none') o.sent = sent;
+  else if (sent !== undefined) problems.push(`spillway.import.sent "${sent}" is not all-kept or none`);
+  return { options: o, problems };
 }
