@@ -109,6 +109,7 @@ describe('fares-and-passes.jsonl', () => {
     // history, newest first: 70 (turn 3) + 55 (turn 2) + 70 (turn 1) = 195, all fit: 326 + 195 = 521
     // room for passages = 1024 − 521 = 503; rank 1 needs 605 + 4 = 609 > 503 → clipped,
     // keeping 503 − 4 = 499 text tokens (≥ 32); ranks 2–4 are dropped.
+    expect(1024 - (3 + 279 + 44) - (70 + 55 + 70) - 4).toBe(499);
     const kept = head(r, seg(r, 'kb-fares-contactless-capping').text, 499);
     expect(seg(r, 'kb-fares-contactless-capping').text).toContain('Zones A–B: £31.50');
     expect(kept).not.toContain('£31.50'); // the weekly cap the rider asked for was cut away…
@@ -174,22 +175,23 @@ describe('long-trip-planning.jsonl', () => {
   it('turn 9: history crowds the rank-1 passage down to a clip that loses the answer', () => {
     const r = turnOf(recs, 9);
     const hist = [1, 2, 3, 4, 5, 6, 7, 8].map((n) => historyTurn(r, n));
-    expect(hist).toEqual([123, 95, 56, 85, 48, 98, 36, 92]); // sum 633
-    // fixed = 3 + (275+4) + (20+4) = 306; 306 + 633 = 939 ≤ 1024, all history kept;
-    // room = 1024 − 939 = 85; rank 1 (ferry timetable) needs 202 + 4 = 206 → clipped to 81 tokens.
+    expect(hist).toEqual([127, 95, 56, 85, 48, 98, 36, 92]); // sum 637
+    // fixed = 3 + (275+4) + (20+4) = 306; 306 + 637 = 943 ≤ 1024, all history kept;
+    // room = 1024 − 943 = 81; rank 1 (ferry timetable) needs 202 + 4 = 206 → clipped to 77 tokens.
     expect(3 + t(r, 'instructions') + 4 + t(r, 'query') + 4).toBe(306);
     expect(t(r, 'kb-ferry-summer-timetable')).toBe(202);
-    const kept = head(r, seg(r, 'kb-ferry-summer-timetable').text, 81);
+    expect(1024 - 306 - hist.reduce((a, b) => a + b, 0) - 4).toBe(77);
+    const kept = head(r, seg(r, 'kb-ferry-summer-timetable').text, 77);
     expect(kept).not.toContain('The last ferry from Lowtide Island leaves at 20:00');
     expect(seg(r, 'kb-ferry-summer-timetable').text).toContain('no bus service runs from the island');
   });
 
   it('turn 10: the rank-1 passage is dropped (fewer than 32 tokens of room)', () => {
     const r = turnOf(recs, 10);
-    // fixed = 3 + 279 + (19+4) = 305; history 633 + 55 (turn 9) = 688; 305 + 688 = 993;
-    // room 1024 − 993 = 31, minus 4 framing = 27 text tokens < 32 → rank 1 dropped, and all after it.
+    // fixed = 3 + 279 + (19+4) = 305; history 637 + 55 (turn 9) = 692; 305 + 692 = 997;
+    // room 1024 − 997 = 27, minus 4 framing = 23 text tokens < 32 → rank 1 dropped, and all after it.
     expect(3 + t(r, 'instructions') + 4 + t(r, 'query') + 4).toBe(305);
-    expect([1, 2, 3, 4, 5, 6, 7, 8, 9].reduce((s, n) => s + historyTurn(r, n), 0)).toBe(688);
+    expect([1, 2, 3, 4, 5, 6, 7, 8, 9].reduce((s, n) => s + historyTurn(r, n), 0)).toBe(692);
   });
 
   it('turn 12: a pasted itinerary puts the record over budget before any passage', () => {
