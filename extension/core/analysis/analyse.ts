@@ -4,7 +4,7 @@
  */
 import { JOINER, type Fate, type LogRecord, type Segment } from '../log/types';
 import type { Ledger, SegmentLedger } from '../audit/types';
-import { bm25Scores, kendallTauB, ranksByScore } from './bm25';
+import { bm25Scorer, kendallTauB, ranksByScore } from './bm25';
 import { countTokens, overlapF1 } from './f1';
 import { squadTokens, words } from './normalize';
 import { positionCheck } from './position';
@@ -96,6 +96,13 @@ function emptyCounts(): Record<SentenceLabel, number> {
 export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial<AnalysisSettings> = {}): TurnAnalysis {
   const s: AnalysisSettings = { ...DEFAULT_ANALYSIS_SETTINGS, ...settings };
   const notes: string[] = [];
+  // One word list per distinct text for the whole turn: support, BM25 and shingles share it.
+  const wordCache = new Map<string, string[]>();
+  const tokenize = (text: string): string[] => {
+    let list = wordCache.get(text);
+    if (!list) wordCache.set(text, (list = words(text)));
+    return list;
+  };
   const joined = joinLedger(record, ledger, notes);
   const byPrompt = [...joined].sort((a, b) => a.order - b.order);
   // Best first: retriever rank, then prompt order. Ties in the analyses resolve in this order.
@@ -118,7 +125,7 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
     // straddle the cut still counts as lost to the budget.
     if (j.fate !== 'kept') parts.push({ id: j.seg.id, kind: j.seg.kind, part: 'spilled', text: j.seg.text });
   }
-  const sentences = hasReply ? sentenceSupport(reply, parts, s) : [];
+  const sentences = hasReply ? sentenceSupport(reply, parts, s, undefined, tokenize) : [];
   const counts = emptyCounts();
   for (const sentence of sentences) counts[sentence.label]++;
 
@@ -132,11 +139,12 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
 
   // --- BM25+ ------------------------------------------------------------------------------
   const queryText = joined.filter((j) => j.seg.kind === 'query').map((j) => j.seg.text).join(JOINER);
-  const hasQuery = words(queryText).length > 0;
+  const hasQuery = tokenize(queryText).length > 0;
   // Internal ids by index: passage ids from a log are not guaranteed unique.
   const docs = passages.map((j, i) => ({ id: String(i), text: j.seg.text }));
-  const queryScores = hasQuery ? bm25Scores(queryText, docs) : null;
-  const replyScores = hasReply ? bm25Scores(reply, docs) : null;
+  const scorer = hasQuery || hasReply ? bm25Scorer(docs, tokenize) : null;
+  const queryScores = scorer && hasQuery ? scorer(queryText) : null;
+  const replyScores = scorer && hasReply ? scorer(reply) : null;
   const queryScoreList = passages.map((_, i) => queryScores?.get(String(i)) ?? 0);
   const queryRanks = ranksByScore(queryScoreList);
 
@@ -227,6 +235,7 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
     passages.map((j) => ({ id: j.seg.id, text: j.seg.text, keptTokens: j.keptTokens })),
     s,
     notes,
+    tokenize,
   );
 
   // --- position ---------------------------------------------------------------------------

@@ -19,25 +19,44 @@ export const BM25_PARAMS = { k: 1.2, b: 0.7, d: 0.5 } as const;
 
 /** BM25+ score of every doc against `query` (0 for docs sharing no term). Ids must be unique. */
 export function bm25Scores(query: string, docs: readonly { id: string; text: string }[]): Map<string, number> {
-  const scores = new Map<string, number>();
+  return bm25Scorer(docs)(query);
+}
+
+/**
+ * Index `docs` once and score any number of queries against them (a turn scores its passages
+ * against both the query and the reply). `tokenize` lets a caller share memoised word lists.
+ */
+export function bm25Scorer(docs: readonly { id: string; text: string }[], tokenize: (text: string) => string[] = words): (query: string) => Map<string, number> {
+  const seen = new Set<string>();
   for (const doc of docs) {
-    if (scores.has(doc.id)) throw new Error(`bm25Scores: duplicate document id "${doc.id}"`);
-    scores.set(doc.id, 0);
+    if (seen.has(doc.id)) throw new Error(`bm25Scores: duplicate document id "${doc.id}"`);
+    seen.add(doc.id);
   }
-  if (docs.length === 0) return scores;
   const index = new MiniSearch<{ id: number; text: string }>({
     fields: ['text'],
-    tokenize: (text) => words(text),
+    tokenize: (text) => tokenize(text),
     processTerm: (term) => term,
     searchOptions: { bm25: { ...BM25_PARAMS } },
   });
   // Numeric ids inside the index: passage ids are arbitrary strings from the log.
   index.addAll(docs.map((doc, i) => ({ id: i, text: doc.text })));
-  for (const hit of index.search(query)) {
-    const doc = docs[hit.id as number];
-    if (doc) scores.set(doc.id, hit.score / Math.max(1, hit.queryTerms.length));
-  }
-  return scores;
+  return (query) => {
+    const scores = new Map<string, number>();
+    for (const doc of docs) scores.set(doc.id, 0);
+    if (docs.length === 0) return scores;
+    // Search each distinct term once, boosted by its count: the same sum as repeating it, but a
+    // long reply costs one lookup per distinct word (minisearch's per-term overhead is high).
+    const counts = new Map<string, number>();
+    for (const t of tokenize(query)) counts.set(t, (counts.get(t) ?? 0) + 1);
+    const distinct = [...counts.keys()].join(' ');
+    const boostTerm = (term: string): number => counts.get(term) ?? 1;
+    for (const hit of index.search(distinct, { boostTerm })) {
+      const doc = docs[hit.id as number];
+      // minisearch multiplies by the number of distinct query terms matched; divide it back out.
+      if (doc) scores.set(doc.id, hit.score / Math.max(1, hit.queryTerms.length));
+    }
+    return scores;
+  };
 }
 
 /**

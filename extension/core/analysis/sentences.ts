@@ -73,11 +73,17 @@ function bestMatch(sentenceWords: readonly string[], parts: readonly IndexedPart
  * Cost: one pass over every part's text to build its vocabulary, then |content words| lookups
  * per sentence and part.
  */
-export function sentenceSupport(reply: string, parts: readonly SupportPart[], thresholds: SupportThresholds, locale?: string): SentenceSupport[] {
+export function sentenceSupport(
+  reply: string,
+  parts: readonly SupportPart[],
+  thresholds: SupportThresholds,
+  locale?: string,
+  tokenize: (text: string) => string[] = words,
+): SentenceSupport[] {
   const kept: IndexedPart[] = [];
   const spilled: IndexedPart[] = [];
   for (const part of parts) {
-    (part.part === 'kept' ? kept : spilled).push({ part, vocabulary: new Set(words(part.text)) });
+    (part.part === 'kept' ? kept : spilled).push({ part, vocabulary: new Set(tokenize(part.text)) });
   }
   return splitSentences(reply, locale).map((span, index) => {
     const cw = contentWords(span.text);

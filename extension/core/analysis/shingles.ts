@@ -160,9 +160,14 @@ export interface DuplicateSettings {
  * ever touched: linear in the turn's text unless many passages share the same shingles.
  * MinHash mode holds k hashes per passage (bounded memory) and compares all pairs in O(k).
  */
-export function nearDuplicates(passages: readonly DuplicateInput[], settings: DuplicateSettings, notes?: string[]): DuplicateCheck {
+export function nearDuplicates(
+  passages: readonly DuplicateInput[],
+  settings: DuplicateSettings,
+  notes?: string[],
+  tokenize: (text: string) => string[] = words,
+): DuplicateCheck {
   const w = settings.shingleWords;
-  const tokenLists = passages.map((p) => words(p.text));
+  const tokenLists = passages.map((p) => tokenize(p.text));
   // Shingle positions (an upper bound on distinct shingles), known before building any set.
   const total = tokenLists.reduce((sum, t) => sum + (t.length === 0 ? 0 : Math.max(1, t.length - w + 1)), 0);
   const useMinhash = total > settings.minhashAboveShingles && hash32 !== null;
