@@ -170,17 +170,11 @@ export function buildLedger(located: LocatedRecord, opts: AuditOptions, acct: Ac
 }
 
 function mandatoryExceeds(record: LogRecord, meter: PromptMeter, budget: number): boolean {
-  const probe = new PromptMeter(record.segments, meter.framing, meter.acct, meter.encoding);
-  record.segments.forEach((s, i) => {
-    if (isMandatory(s)) probe.include(i);
-  });
-  return probe.used() > budget;
+  return meter.countWhole((i) => isMandatory(record.segments[i]!)) > budget;
 }
 
 function fullCount(meter: PromptMeter): number {
-  const probe = new PromptMeter(meter.segments, meter.framing, meter.acct, meter.encoding);
-  meter.segments.forEach((_, i) => probe.include(i));
-  return probe.used();
+  return meter.countWhole(() => true);
 }
 
 /** Loads the encoder the record needs, then builds its ledger. */

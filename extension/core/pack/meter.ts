@@ -110,11 +110,48 @@ export class PromptMeter {
     return any ? parts.join(JOINER) : undefined;
   }
 
+  /** Exact content tokens of message m with the kept characters given by `keptOf`. */
+  private contentTokens(m: number, keptOf: (i: number) => number | undefined): number | undefined {
+    const members = this.messages[m]!.members;
+    // One whole segment: its own count, already known (no join, no hashing again).
+    if (members.length === 1) {
+      const i = members[0]!;
+      const k = keptOf(i);
+      if (k === undefined) return undefined;
+      if (k >= this.segments[i]!.text.length) return this.tokens[i]!;
+    }
+    const parts: string[] = [];
+    for (const i of members) {
+      const k = keptOf(i);
+      if (k === undefined) continue;
+      const t = this.segments[i]!.text;
+      parts.push(k >= t.length ? t : t.slice(0, k));
+    }
+    return parts.length ? this.acct.count(this.encoding, parts.join(JOINER)) : undefined;
+  }
+
+  /**
+   * Exact tokens of the prompt with exactly the segments `whole(i)` included, uncut — without
+   * changing the meter (for the whole-prompt figure and the mandatory-only check).
+   */
+  countWhole(whole: (i: number) => boolean): number {
+    let total = 0;
+    let present = 0;
+    const keptOf = (i: number): number | undefined => (whole(i) ? this.segments[i]!.text.length : undefined);
+    this.messages.forEach((msg, m) => {
+      const c = this.contentTokens(m, keptOf);
+      if (c === undefined) return;
+      present++;
+      total += msg.overhead + c;
+    });
+    return present ? total + this.priming : 0;
+  }
+
   private refresh(m: number): void {
-    const content = this.messageContent(m);
-    const after = content === undefined ? 0 : this.messages[m]!.overhead + this.acct.count(this.encoding, content);
+    const c = this.contentTokens(m, (i) => this.kept[i]);
+    const after = c === undefined ? 0 : this.messages[m]!.overhead + c;
     const was = this.isPresent[m]!;
-    const now = content !== undefined;
+    const now = c !== undefined;
     this.present += (now ? 1 : 0) - (was ? 1 : 0);
     this.isPresent[m] = now;
     this.total += after - this.msgTotal[m]!;
