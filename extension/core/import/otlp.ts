@@ -363,6 +363,7 @@ export function importSpans(spans: FlatSpan[], o: ResolvedImportOptions): { resu
     }
   }
   results.sort((a, b) => a.line - b.line);
+  issues.sort((a, b) => a.line - b.line);
   return { results, issues };
 }
 

@@ -54,7 +54,7 @@ describe('chat-message log import (fixture chat-requests.jsonl)', () => {
     expect(r.segments[1]!.text).toBe('When does the first ferry leave Saltmarsh Quay on Sunday?');
     expect(r.segments.slice(1).every((s) => s.message === 1)).toBe(true);
     expect(r).toMatchObject({ conversation: 'conv-ferry-1', turn: 1, model: { name: 'gpt-4o-mini', window: 128000, reserve: 4096 } });
-    expect(r.usage).toEqual({ prompt: 171, completion: 19, total_tokens: 190 });
+    expect(r.usage).toEqual({ prompt: 188, completion: 19, total_tokens: 207 });
     expect(r.reply).toBe('On Sundays the first Tidewater ferry leaves Saltmarsh Quay at 08:30.');
     // fields the importer does not map are kept
     expect(r['chat']).toEqual({ temperature: 0.2 });

@@ -38,7 +38,7 @@ describe('OTLP/JSON import (fixture otel-traces.jsonl)', () => {
       [1, 0.91, 'kb-rider-help'],
       [2, 0.42, 'kb-rider-help'],
     ]);
-    expect(r).toMatchObject({ conversation: 'conv-otel-pass', model: { name: 'gpt-4o-mini', reserve: 300 }, usage: { prompt: 118, completion: 14 } });
+    expect(r).toMatchObject({ conversation: 'conv-otel-pass', model: { name: 'gpt-4o-mini', reserve: 300 }, usage: { prompt: 149, completion: 14 } });
     expect(r.reply).toBe('No. The Tidewater Pass does not cover the Estuary Express.');
     expect(r.time).toBe('2025-11-28T09:34:05.400Z');
     const otel = r['otel'] as { attributes: Record<string, unknown>; resource: Record<string, unknown>; retrieval: Array<{ spanId: string; attributes: Record<string, unknown> }> };
@@ -74,7 +74,7 @@ describe('OTLP/JSON import (fixture otel-traces.jsonl)', () => {
     const r = bySpan('b8b8b8b8b8b8b8b8');
     expect(kinds(r)).toEqual(['instructions:m0', 'query:m1.1', 'passage:kb-bike-2']);
     expect(r.model.name).toBe('gpt-4');
-    expect(r.usage).toEqual({ prompt: 96, completion: 21 });
+    expect(r.usage).toEqual({ prompt: 92, completion: 21 });
     expect(r.reply).toBe('Yes. Before 09:30 on weekdays you need a Bike Carriage Permit on buses.');
     expect((r['otel'] as { attributes: Record<string, unknown> }).attributes).toEqual({ 'gen_ai.system': 'openai' });
     expect(result.issues.filter((x) => x.line === 5).map((x) => x.code)).toEqual(['import-unmapped']);
