@@ -1,0 +1,14 @@
+/**
+ * The heavy half of the extension: the core's reader, validator, ledger, importers and tokenizer.
+ * Bundled separately (dist/engine.js) and required on first need, so activation never parses it:
+ * the tokenizer's rank tables and the schema validator load only when a log is opened.
+ */
+export { Accountant } from '../core/tokens/accountant';
+export { tokenBoundaries } from '../core/tokens/cut';
+export { ENCODINGS, encodingForModel, isEncodingName } from '../core/tokens/encoder';
+export { auditRecord, resolveEncoding } from '../core/audit/ledger';
+export { AuditCancelled, auditItems } from '../core/audit/audit';
+export { renderHtmlReport, PRIVACY_NOTICE } from '../core/audit/html';
+export { parseRecordLine, readLog, readLogText } from '../core/log/reader';
+export { convertText } from '../core/import/index';
+export { detectFormat } from '../core/import/detect';

@@ -1,0 +1,57 @@
+/**
+ * Spillway's extension host entry: wires sessions, editor features, the panel and commands.
+ * Activation registers listeners only; the tokenizer loads when the first log is audited.
+ */
+import { bundleStart } from './clock';
+import * as vscode from 'vscode';
+import { ActiveLog } from './activeLog';
+import { registerCommands } from './commands';
+import { LogDiagnostics, LogStatusBar, RecordCodeLenses, SegmentHover } from './editorFeatures';
+import { disposeOutput, output } from './output';
+import { PANEL_VIEW_ID, PanelProvider } from './panel';
+import { LogSessions } from './sessions';
+
+/** Documents the CodeLens and hover providers are asked about; sessions decide which are logs. */
+const SELECTOR: vscode.DocumentSelector = [{ language: 'jsonl' }, { language: 'json' }, { pattern: '**/*.{jsonl,ndjson}' }, { language: 'plaintext' }];
+
+export function activate(context: vscode.ExtensionContext): void {
+  const t0 = performance.now();
+  const log = output();
+  const sessions = new LogSessions(context.workspaceState);
+  const active = new ActiveLog(sessions);
+  const lenses = new RecordCodeLenses(sessions);
+  const diagnostics = new LogDiagnostics(sessions);
+  const status = new LogStatusBar();
+  const panel = new PanelProvider(context.extensionUri, sessions, active);
+
+  context.subscriptions.push(
+    sessions,
+    active,
+    lenses,
+    diagnostics,
+    status,
+    panel,
+    vscode.languages.registerCodeLensProvider(SELECTOR, lenses),
+    vscode.languages.registerHoverProvider(SELECTOR, new SegmentHover(sessions)),
+    vscode.window.registerWebviewViewProvider(PANEL_VIEW_ID, panel),
+    sessions.onDidUpdate((s) => {
+      diagnostics.update(s);
+      lenses.refresh();
+      if (s === active.session) status.update(active);
+    }),
+    sessions.onDidRemove((s) => {
+      diagnostics.clear(s.doc.uri);
+      lenses.refresh();
+    }),
+    active.onDidChange(() => status.update(active)),
+    ...registerCommands(sessions, active, panel),
+    { dispose: disposeOutput },
+  );
+  status.update(active);
+  const t1 = performance.now();
+  log.info(`Spillway activated in ${(t1 - t0).toFixed(1)} ms (activate), ${(t1 - bundleStart).toFixed(1)} ms since the bundle started evaluating`);
+}
+
+export function deactivate(): void {
+  // Everything is in context.subscriptions, disposed by VS Code.
+}
