@@ -22,6 +22,7 @@ export interface PassageChange {
 }
 
 export interface SideSummary {
+  model: string;
   used: number;
   budget: number;
   state: TurnState;
@@ -85,7 +86,7 @@ function historyStatus(l: Ledger, record: LogRecord): Map<number | string, boole
   return out;
 }
 
-const side = (l: Ledger, spent?: number, state?: TurnState): SideSummary => ({ used: spent ?? l.used, budget: l.budget, state: state ?? l.state, plan: l.plan, encoding: l.encoding });
+const side = (l: Ledger, spent?: number, state?: TurnState): SideSummary => ({ model: l.model, used: spent ?? l.used, budget: l.budget, state: state ?? l.state, plan: l.plan, encoding: l.encoding });
 
 /**
  * Compares two ledgers of one turn. `record` gives the texts (reply, evidence marks, passages).
@@ -208,7 +209,7 @@ export class ComparisonTotalsBuilder {
     this.costB = new CostAccumulator(prices);
   }
 
-  add(c: TurnComparison, modelA: string, modelB: string): void {
+  add(c: TurnComparison): void {
     const t = this.t;
     t.turns++;
     if (c.changed) t.changed++;
@@ -234,8 +235,8 @@ export class ComparisonTotalsBuilder {
     }
     t.tokensA += c.a.used;
     t.tokensB += c.b.used;
-    this.costA.add(modelA, c.a.used);
-    this.costB.add(modelB, c.b.used);
+    this.costA.add(c.a.model, c.a.used);
+    this.costB.add(c.b.model, c.b.used);
   }
 
   result(): ComparisonTotals {
@@ -336,7 +337,7 @@ export async function compareLogs(
     const sa = spentOf(xa.record, la);
     const sb = spentOf(xb.record, lb);
     const c = compareLedgers(la, lb, xa.record, { spentA: sa.spent, stateA: sa.state, spentB: sb.spent, stateB: sb.state });
-    totals.add(c, xa.record.model.name, xb.record.model.name);
+    totals.add(c);
     if (ctx.onTurn) ctx.onTurn(c);
     else result.turns.push(c);
     if (c.worse) {
