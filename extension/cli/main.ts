@@ -1,6 +1,9 @@
 /** The `spillway` command line: the same core as the editor, for CI and terminals. */
 import { Command, CommanderError } from 'commander';
 import { registerAudit } from './commands/audit';
+import { registerRepack } from './commands/repack';
+import { registerCompare } from './commands/compare';
+import { registerSweep } from './commands/sweep';
 import { EXIT, UsageError } from './io';
 
 export async function main(argv: string[]): Promise<number> {
@@ -13,6 +16,9 @@ export async function main(argv: string[]): Promise<number> {
     .exitOverride()
     .configureOutput({ writeErr: (s) => process.stderr.write(s) });
   registerAudit(program, setExit);
+  registerRepack(program, setExit);
+  registerCompare(program, setExit);
+  registerSweep(program, setExit);
   try {
     await program.parseAsync(argv, { from: 'user' });
   } catch (e) {
