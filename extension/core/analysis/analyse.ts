@@ -3,14 +3,14 @@
  * was sent). Deterministic and offline: no model, no network, no wall clock.
  */
 import { JOINER, type Fate, type LogRecord, type Segment } from '../log/types';
-import type { Ledger, SegmentLedger } from '../audit/types';
+import type { Ledger } from '../audit/types';
 import { bm25Scorer, kendallTauB, ranksByScore } from './bm25';
 import { countTokens, overlapF1 } from './f1';
 import { squadTokens, words } from './normalize';
 import { positionCheck } from './position';
 import { sentenceSupport, type SupportPart } from './sentences';
 import { nearDuplicates } from './shingles';
-import { ageInDays, isStale } from './staleness';
+import { ageInDays, isStale, parseIsoTime } from './staleness';
 import type {
   AnalysisSettings,
   AnalysisSummary,
@@ -50,23 +50,23 @@ interface Joined {
 }
 
 function joinLedger(record: LogRecord, ledger: Ledger, notes: string[]): Joined[] {
-  const byId = new Map<string, SegmentLedger[]>();
-  ledger.segments.forEach((s) => {
+  const byId = new Map<string, number[]>();
+  ledger.segments.forEach((s, i) => {
     const list = byId.get(s.id);
-    if (list) list.push(s);
-    else byId.set(s.id, [s]);
+    if (list) list.push(i);
+    else byId.set(s.id, [i]);
   });
-  const ledgerIndex = new Map<SegmentLedger, number>(ledger.segments.map((s, i) => [s, i]));
+  const used = new Set<number>();
   const joined = record.segments.map((seg, i) => {
-    // Same position and id: the usual case. Otherwise the next unused ledger entry with that id.
-    let entry = ledger.segments[i]?.id === seg.id ? ledger.segments[i] : undefined;
-    const list = byId.get(seg.id);
-    if (entry && list) list.splice(list.indexOf(entry), 1);
-    else entry = list?.shift();
+    // Same position and id: the usual case. Otherwise the first unused ledger entry with that id.
+    let at = ledger.segments[i]?.id === seg.id && !used.has(i) ? i : -1;
+    if (at < 0) at = byId.get(seg.id)?.find((j) => !used.has(j)) ?? -1;
+    const entry = at >= 0 ? ledger.segments[at] : undefined;
     if (!entry) {
       notes.push(`segment "${seg.id}" has no ledger entry; treated as kept`);
       return { seg, fate: 'kept' as Fate, keptTokens: 0, sortKey: [Number.MAX_SAFE_INTEGER, i], keptText: seg.text };
     }
+    used.add(at);
     let keptText = seg.text;
     if (entry.fate === 'dropped') keptText = '';
     else if (entry.fate === 'clipped') {
@@ -74,7 +74,7 @@ function joinLedger(record: LogRecord, ledger: Ledger, notes: string[]): Joined[
       if (!entry.cut) notes.push(`clipped segment "${seg.id}" has no cut point; nothing of it counted as sent`);
       keptText = seg.text.slice(0, char);
     }
-    return { seg, fate: entry.fate, keptTokens: entry.keptTokens, sortKey: [entry.message, ledgerIndex.get(entry)!], keptText };
+    return { seg, fate: entry.fate, keptTokens: entry.keptTokens, sortKey: [entry.message, at], keptText };
   });
   const order = joined
     .map((j, i) => ({ i, key: j.sortKey }))
@@ -150,14 +150,15 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
 
   // --- staleness --------------------------------------------------------------------------
   const now = s.now ?? (typeof record.time === 'string' ? record.time : null);
-  if (now !== null && ageInDays(now, now) === null) notes.push(`"now" (${now}) is not an ISO date; staleness not checked`);
+  const nowValid = now !== null && parseIsoTime(now) !== null;
+  if (now !== null && !nowValid) notes.push(`"now" (${now}) is not an ISO date; staleness not checked`);
 
   // --- per passage ------------------------------------------------------------------------
   const sent = byPrompt.filter((j) => j.seg.kind === 'passage' && j.fate !== 'dropped');
   const passageRows: PassageAnalysis[] = passages.map((j, i) => {
     const date = typeof j.seg.date === 'string' ? j.seg.date : null;
-    const ageDays = date !== null && now !== null ? ageInDays(date, now) : null;
-    if (date !== null && now !== null && ageDays === null && ageInDays(now, now) !== null) notes.push(`passage "${j.seg.id}" has a date that is not ISO 8601: ${JSON.stringify(date)}`);
+    const ageDays = date !== null && nowValid ? ageInDays(date, now!) : null;
+    if (date !== null && nowValid && ageDays === null) notes.push(`passage "${j.seg.id}" has a date that is not ISO 8601: ${JSON.stringify(date)}`);
     const sentIndex = sent.indexOf(j);
     return {
       id: j.seg.id,
@@ -181,7 +182,7 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
   // --- evidence ---------------------------------------------------------------------------
   let evidence: EvidenceCheck | null = null;
   if (Array.isArray(record.evidence) && record.evidence.length > 0) {
-    const ids = record.evidence.filter((x): x is string => typeof x === 'string');
+    const ids = [...new Set(record.evidence.filter((x): x is string => typeof x === 'string'))];
     const found = ids.map((id) => passages.find((j) => j.seg.id === id));
     const present = found.filter((j): j is Joined => j !== undefined);
     evidence = {

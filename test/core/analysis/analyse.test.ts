@@ -156,6 +156,29 @@ describe('robustness', () => {
     expect(a.notes).toContain('segment "p4" has no ledger entry; treated as kept');
     expect(a.passages.find((p) => p.id === 'p4')!.fate).toBe('kept');
   });
+  it('joins the ledger by id when its order differs from the record, and duplicate ids one-to-one', () => {
+    const { record, ledger } = makeTurn({
+      segments: [query('Night buses?'), passage('dup', 1, P1), passage('dup', 2, 'Monthly passes cost 62 dollars.')],
+      fates: { dup: 'kept' },
+      reply: 'Night buses N1 and N2 run every 30 minutes from Central Station.',
+    });
+    // Mark the second "dup" dropped, then reverse the ledger: the join must not reuse an entry.
+    ledger.segments[2] = { ...ledger.segments[2]!, fate: 'dropped', keptTokens: 0 };
+    ledger.segments.reverse();
+    const a = analyseTurn(record, ledger);
+    expect(a.notes).toEqual([]);
+    expect(a.passages.map((p) => [p.rank, p.fate])).toEqual([
+      [1, 'kept'],
+      [2, 'dropped'],
+    ]);
+    expect(a.sentences[0]!.label).toBe('supported');
+  });
+  it('an invalid "now" is noted and staleness is not checked', () => {
+    const { record, ledger } = referenceTurn();
+    const a = analyseTurn(record, ledger, { now: 'tomorrow' });
+    expect(a.notes).toContain('"now" (tomorrow) is not an ISO date; staleness not checked');
+    expect(a.staleness.stale).toEqual([]);
+  });
   it('no reply: no sentences, no F1, nothing flagged for support', () => {
     const { record, ledger } = makeTurn({ segments: [query('Hi'), passage('p1', 1, P1)] });
     const a = analyseTurn(record, ledger);
