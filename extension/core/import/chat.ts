@@ -3,11 +3,13 @@
  * optionally the reply, the reported usage, the model, a conversation id and a turn.
  *
  * Accepted places (first found wins):
- * - messages: `messages`, `request.messages`, `input` (when an array of messages)
+ * - messages: `messages`, `contents` (Gemini: `parts`, role `model`), `input` (when an array), also under `request`
+ * - system text beside the messages: `system` (string or text blocks), `systemInstruction` / `system_instruction`
  * - model: `model`, `request.model`, `response.model`
  * - reply: `reply`, `response` / `completion` / `output` (string), `response.choices[0].message.content`,
- *   `choices[0].message.content`, `response.content` (string or parts), `output_text`
- * - usage: `usage` or `response.usage`: `prompt_tokens|input_tokens|promptTokenCount` →
+ *   `choices[0].message.content`, `response.content` (string or parts), `output_text`,
+ *   `candidates[0].content.parts` (also under `response`)
+ * - usage: `usage` / `usageMetadata` (also under `response`): `prompt_tokens|input_tokens|promptTokenCount` →
  *   `usage.prompt`, `completion_tokens|output_tokens|candidatesTokenCount` → `usage.completion`
  *   (all other usage fields are kept)
  * - reserve: `max_tokens|max_completion_tokens|max_output_tokens` (also under `request`)
@@ -47,7 +49,7 @@ export interface ImportedRecord {
 }
 
 export const isObject = (v: unknown): v is Json => typeof v === 'object' && v !== null && !Array.isArray(v);
-const str = (v: unknown): string | undefined => (typeof v === 'string' ? v : undefined);
+const str = (v: unknown): string | undefined => (typeof v === 'string' && v !== '' ? v : undefined);
 const int = (v: unknown): number | undefined => (typeof v === 'number' && Number.isInteger(v) && v >= 0 ? v : typeof v === 'string' && /^\d+$/.test(v) ? Number(v) : undefined);
 
 function first<T>(...vals: Array<T | undefined>): T | undefined {
@@ -94,7 +96,8 @@ function chatMessages(raw: unknown[]): SourceMessage[] {
   return raw.map((m, i) => {
     if (!isObject(m)) return { role: '?', text: undefined, unmapped: [`message ${i} is not an object`] };
     const unmapped: string[] = [];
-    const text = contentText(m['content'], unmapped);
+    // `parts` is the Gemini spelling of `content`.
+    const text = contentText(m['content'] ?? m['parts'], unmapped);
     if (Array.isArray(m['tool_calls']) && m['tool_calls'].length) unmapped.push(`${m['tool_calls'].length} tool call(s) are not counted: their rendering into the prompt is not published`);
     if (isObject(m['function_call'])) unmapped.push('function_call is not counted: its rendering into the prompt is not published');
     const out: SourceMessage = { role: str(m['role']) ?? '?', text, unmapped };
@@ -113,6 +116,8 @@ function replyText(o: Json): string | undefined {
     if (isObject(c['message'])) return contentText(c['message']['content'], []);
     if (typeof c['text'] === 'string') return c['text'];
   }
+  const cands = resp['candidates'];
+  if (Array.isArray(cands) && isObject(cands[0]) && isObject(cands[0]['content'])) return contentText(cands[0]['content']['parts'], []);
   if (resp !== o && resp['content'] !== undefined) return contentText(resp['content'], []);
   if (isObject(o['reply'])) return contentText(o['reply']['content'], []);
   return undefined;
@@ -198,8 +203,8 @@ function timeOf(o: Json): string | undefined {
 
 const CONVERSATION_KEYS = ['conversation', 'conversation_id', 'conversationId', 'thread_id', 'session_id'];
 const CONSUMED = new Set([
-  'messages', 'request', 'response', 'model', 'reply', 'completion', 'output', 'output_text', 'choices', 'usage',
-  'max_tokens', 'max_completion_tokens', 'max_output_tokens', 'turn', 'time', 'timestamp', 'created_at', 'created', 'input',
+  'messages', 'contents', 'system', 'systemInstruction', 'system_instruction', 'request', 'response', 'model', 'reply', 'completion', 'output', 'output_text', 'choices', 'usage',
+  'max_tokens', 'max_completion_tokens', 'max_output_tokens', 'turn', 'usageMetadata', 'candidates', 'time', 'timestamp', 'created_at', 'created', 'input',
   ...CONVERSATION_KEYS,
 ]);
 
@@ -215,12 +220,22 @@ export function importChatLine(text: string, line: number, o: ResolvedImportOpti
   }
   if (!isObject(value)) return { issues: [{ line, column: 1, code: 'import-unmapped', message: 'a chat log line must be a JSON object' }] };
   const req = isObject(value['request']) ? value['request'] : value;
-  const rawMessages = Array.isArray(req['messages']) ? req['messages'] : Array.isArray(value['messages']) ? value['messages'] : Array.isArray(req['input']) ? req['input'] : undefined;
-  if (!rawMessages) return { issues: [{ line, column: 1, code: 'import-unmapped', message: 'no "messages" array: not a chat request; line skipped' }] };
-  const msgPath = req === value ? (Array.isArray(value['messages']) ? ['messages'] : ['input']) : ['request', 'messages'];
+  const key = ['messages', 'contents', 'input'].find((k) => Array.isArray(req[k])) ?? (req !== value ? ['messages', 'contents'].find((k) => Array.isArray(value[k])) : undefined);
+  if (!key) return { issues: [{ line, column: 1, code: 'import-unmapped', message: 'no "messages" array: not a chat request; line skipped' }] };
+  const holder = Array.isArray(req[key]) ? req : value;
+  const msgPath: Array<string | number> = holder === value ? [key] : ['request', key];
 
   const meta = isObject(value['metadata']) ? value['metadata'] : {};
-  const msgs = chatMessages(rawMessages);
+  const msgs = chatMessages(holder[key] as unknown[]);
+  // System text given beside the messages (Anthropic `system`, Gemini `systemInstruction`) opens the prompt.
+  const sysKey = ['system', 'systemInstruction', 'system_instruction'].find((k) => holder[k] !== undefined && holder[k] !== null);
+  if (sysKey) {
+    const unmapped: string[] = [];
+    const sv = holder[sysKey];
+    const text = contentText(isObject(sv) ? sv['parts'] ?? sv['content'] ?? sv['text'] : sv, unmapped);
+    msgs.unshift({ role: 'system', text, unmapped });
+  }
+  const shift = sysKey ? 1 : 0;
   const turnIn = first(int(value['turn']), int(meta['turn']));
   const mapped = mapMessages(msgs, o, turnIn !== undefined && turnIn > 0 ? turnIn : undefined);
   const notes = [...mapped.notes];
@@ -251,7 +266,8 @@ export function importChatLine(text: string, line: number, o: ResolvedImportOpti
   if (o.framing) record.framing = o.framing;
   const reply = replyText(value);
   if (reply !== undefined) record.reply = reply;
-  const usage = isObject(value['usage']) ? value['usage'] : isObject(value['response']) && isObject(value['response']['usage']) ? value['response']['usage'] : undefined;
+  const resp = isObject(value['response']) ? value['response'] : {};
+  const usage = [value['usage'], resp['usage'], value['usageMetadata'], resp['usageMetadata']].find(isObject);
   if (usage) record.usage = mapUsage(usage);
   if (o.sent === 'all-kept') record.sent = sentAllKept(mapped.segments);
   const extra: Json = {};
@@ -262,7 +278,9 @@ export function importChatLine(text: string, line: number, o: ResolvedImportOpti
 
   for (const n of notes) {
     const m = /^message (\d+)/.exec(n.message);
-    issues.push({ line, column: m ? columnAt(text, [...msgPath, Number(m[1])]) : 1, code: n.code, message: n.message });
+    const at = m ? Number(m[1]) - shift : undefined;
+    const path = at === undefined ? undefined : at < 0 ? [...msgPath.slice(0, -1), sysKey!] : [...msgPath, at];
+    issues.push({ line, column: path ? columnAt(text, path) : 1, code: n.code, message: n.message });
   }
   const explain: RecordExplain = {
     line,

@@ -16,7 +16,7 @@ export function detectFormat(firstLines: string[]): InputFormat | undefined {
   // A pretty-printed OTLP document: `{` alone on the first line, the key on a later one.
   if (head.trim() === '{' && firstLines.slice(0, 5).some((l) => /^\s*"resourceSpans"\s*:/.test(l))) return 'otlp';
   if (/"v"\s*:\s*1\s*[,}]/.test(s) && /"segments"\s*:/.test(s)) return 'spillway';
-  if (/"messages"\s*:\s*\[/.test(s)) return 'chat';
+  if (/"(messages|contents)"\s*:\s*\[/.test(s)) return 'chat';
   // Keys may come after a long first value: fall back to parsing a short line.
   if (head.length <= 1_000_000) {
     try {
@@ -26,7 +26,7 @@ export function detectFormat(firstLines: string[]): InputFormat | undefined {
         if (Array.isArray(o['resourceSpans'])) return 'otlp';
         if (o['v'] === 1 && Array.isArray(o['segments'])) return 'spillway';
         const req = o['request'];
-        if (Array.isArray(o['messages']) || (typeof req === 'object' && req !== null && Array.isArray((req as Record<string, unknown>)['messages']))) return 'chat';
+        if (Array.isArray(o['messages']) || Array.isArray(o['contents']) || (typeof req === 'object' && req !== null && Array.isArray((req as Record<string, unknown>)['messages']))) return 'chat';
       }
     } catch {
       return undefined;

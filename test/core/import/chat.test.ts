@@ -186,3 +186,41 @@ describe('chat-message log import (fixture chat-requests.jsonl)', () => {
     expect(r.segments.map((s) => s.text).join('\n\n')).toBe(JSON.parse(line).messages[0].content);
   });
 });
+
+describe('other chat request spellings', () => {
+  it('Anthropic-style top-level system text and text blocks', () => {
+    const line = JSON.stringify({
+      model: 'claude-sonnet-x', max_tokens: 256, system: 'Be brief.',
+      messages: [{ role: 'user', content: [{ type: 'text', text: 'Hi' }, { type: 'image', source: { type: 'base64', data: 'AA==' } }] }],
+      usage: { input_tokens: 20, output_tokens: 5 },
+    });
+    const r = convertText(line, 'chat');
+    const rec = r.records[0]!.record;
+    expect(rec.segments.map((s) => [s.kind, s.role, s.text])).toEqual([
+      ['instructions', 'system', 'Be brief.'],
+      ['query', 'user', 'Hi'],
+    ]);
+    expect(rec.usage).toEqual({ prompt: 20, completion: 5 });
+    expect(rec.model).toMatchObject({ name: 'claude-sonnet-x', reserve: 256, encoding: 'o200k_base' });
+    // the image issue points at the user message (index 0 in the source array, 1 after the system text)
+    expect(r.issues.map((i) => i.code)).toEqual(['import-unmapped']);
+    expect(line.slice(r.issues[0]!.column - 1).startsWith('{"role":"user"')).toBe(true);
+  });
+
+  it('Gemini-style contents with parts, role model, systemInstruction, usageMetadata and candidates', () => {
+    const line = JSON.stringify({
+      model: 'gemini-x',
+      systemInstruction: { parts: [{ text: 'Answer from the sources.' }] },
+      contents: [
+        { role: 'user', parts: [{ text: 'Hello' }] },
+        { role: 'model', parts: [{ text: 'Hi, how can I help?' }] },
+        { role: 'user', parts: [{ text: 'Night bus to Dunmere Park?' }] },
+      ],
+      response: { candidates: [{ content: { role: 'model', parts: [{ text: 'Take the N2.' }] } }], usageMetadata: { promptTokenCount: 40, candidatesTokenCount: 4 } },
+    });
+    const rec = convertText(line, 'chat').records[0]!.record;
+    expect(rec.segments.map((s) => `${s.kind}:${s.role}:${s.turn ?? '-'}`)).toEqual(['instructions:system:-', 'history:user:1', 'history:assistant:1', 'query:user:-']);
+    expect(rec.reply).toBe('Take the N2.');
+    expect(rec.usage).toEqual({ prompt: 40, completion: 4 });
+  });
+});
