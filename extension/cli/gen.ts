@@ -3,7 +3,7 @@
  * (see extension/core/sample/generator.ts) to stdout or, atomically (temp file + rename), to FILE.
  */
 import { Command, InvalidArgumentError } from 'commander';
-import { createWriteStream, renameSync, rmSync, type WriteStream } from 'node:fs';
+import { createWriteStream, openSync, renameSync, rmSync, type WriteStream } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { LRUCache } from 'lru-cache';
 import { generateLog, type GeneratorOptions } from '../core/sample/generator';
@@ -39,10 +39,21 @@ interface GenFlags {
   progress: boolean;
 }
 
-/** Writes one chunk, waiting for the stream to drain so memory stays bounded. */
+/** Writes one chunk, waiting for the stream to drain (or fail) so memory stays bounded. */
 function write(stream: NodeJS.WritableStream, chunk: string): Promise<void> | undefined {
   if (stream.write(chunk)) return undefined;
-  return new Promise((resolve) => stream.once('drain', () => resolve()));
+  return new Promise((resolve, reject) => {
+    const onDrain = (): void => {
+      stream.off('error', onError);
+      resolve();
+    };
+    const onError = (err: Error): void => {
+      stream.off('drain', onDrain);
+      reject(err);
+    };
+    stream.once('drain', onDrain);
+    stream.once('error', onError);
+  });
 }
 
 async function run(flags: GenFlags): Promise<void> {
@@ -72,11 +83,16 @@ async function run(flags: GenFlags): Promise<void> {
   };
 
   let sink: NodeJS.WritableStream = process.stdout;
+  let streamError: Error | undefined;
   let file: WriteStream | undefined;
   let temp: string | undefined;
   if (flags.out) {
     temp = join(dirname(flags.out), `.${basename(flags.out)}.${process.pid}.tmp`);
-    file = createWriteStream(temp);
+    // Open synchronously so an unwritable destination fails at once with a plain message.
+    file = createWriteStream(temp, { fd: openSync(temp, 'w') });
+    file.on('error', (err) => {
+      streamError = err;
+    });
     sink = file;
   }
   const cleanUp = (): void => {
@@ -104,6 +120,7 @@ async function run(flags: GenFlags): Promise<void> {
       lines++;
       const wait = write(sink, chunk);
       if (wait) await wait;
+      if (streamError) throw streamError;
       if (showProgress && bytes >= nextReport) {
         nextReport += 16 * 1024 * 1024;
         const s = (Date.now() - started) / 1000;
@@ -136,6 +153,8 @@ const program = new Command('gen')
   .option('--min-turns <n>', 'fewest turns per conversation (default 3)', positiveInt)
   .option('--max-turns <n>', 'most turns per conversation (default 40)', positiveInt)
   .option('--no-progress', 'no progress lines on stderr')
+  // Usage errors exit 2 (as the spillway CLI does); --help exits 0.
+  .exitOverride((err) => process.exit(err.exitCode === 0 ? 0 : 2))
   .action(async (flags: GenFlags) => {
     try {
       await run(flags);

@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import Ajv from 'ajv';
 import { get_encoding, type TiktokenEncoding } from 'tiktoken';
-import { generateEntries, generateLog, utf8Length, type GeneratorOptions } from '../../../extension/core/sample/generator';
+import { DEFAULT_MALFORMED_RATE, generateEntries, generateLog, utf8Length, type GeneratorOptions } from '../../../extension/core/sample/generator';
 import { buildKnowledgeBase, makeArticle } from '../../../extension/core/sample/knowledgeBase';
 import { mulberry32 } from '../../../extension/core/sample/prng';
 import { ENCODINGS } from '../../../extension/core/tokens/encoder';
@@ -76,14 +76,13 @@ describe('sample log generator', () => {
     expect(good + malformed).toBe(1500);
   });
 
-  it('writes no malformed line when the rate is 0, and about 1 in 50,000 by default', () => {
+  it('writes no malformed line when the rate is 0; the default rate is 1 in 50,000', () => {
     expect([...generateEntries({ seed: 5, turns: 2000, malformedRate: 0 })].some((e) => e.malformed)).toBe(false);
-    // Default rate 1/50,000 over 100,000 small records (short conversations keep the test fast):
-    // expected 2; P(0) = e^−2 ≈ 0.14 for a random seed, so the bound is loose and the seed is fixed.
-    let bad = 0;
-    for (const e of generateEntries({ seed: 11, turns: 100_000, maxTurns: 3, poolSize: 200 })) if (e.malformed) bad++;
-    expect(bad).toBeLessThanOrEqual(10);
-  }, 120_000);
+    // The rate itself is exercised statistically above (p = 0.02); at the default rate a useful sample
+    // is ~10^5 lines, too slow for a unit test: docs/sample-workspace.md records a 1 GiB run
+    // (95,584 lines, 2 malformed; expected 1.9).
+    expect(DEFAULT_MALFORMED_RATE).toBe(1 / 50_000);
+  });
 
   it('runs conversations of 3–40 consecutive turns', () => {
     const turns = new Map<string, number[]>();
