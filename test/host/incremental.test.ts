@@ -70,10 +70,10 @@ describe('IncrementalAuditor', () => {
   });
 
   it('stops when cancelled, keeping the previous cache', async () => {
-    const { auditor } = fakeDeps();
     const ac = new AbortController();
     ac.abort();
-    const slow = new IncrementalAuditor({ ...(auditor as unknown as { deps: never }).deps, sliceMs: -1 });
+    // sliceMs −1: yield (and check the signal) before the first line.
+    const slow = new IncrementalAuditor({ parse: () => ({ issue: { line: 1, column: 1, code: 'x', message: 'x' } }), audit: async () => ledger(), maxLineLength: 10, sliceMs: -1 });
     await expect(slow.run(doc(['{"n":1}', '{"n":2}']), 'f', { signal: ac.signal })).rejects.toBeInstanceOf(Cancelled);
   });
 
