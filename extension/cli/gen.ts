@@ -6,8 +6,8 @@ import { Command, InvalidArgumentError } from 'commander';
 import { createWriteStream, openSync, renameSync, rmSync, type WriteStream } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
 import { LRUCache } from 'lru-cache';
-import { generateLog, type GeneratorOptions } from '../core/sample/generator';
-import { loadEncoder, type Encoder, type EncodingName } from '../core/tokens/encoder';
+import { generateLog, type BudgetChoice, type GeneratorOptions, type ModelChoice } from '../core/sample/generator';
+import { isEncodingName, loadEncoder, type Encoder, type EncodingName } from '../core/tokens/encoder';
 
 function positiveInt(value: string): number {
   const n = Number(value);
@@ -25,7 +25,27 @@ function rate(value: string): number {
   return n;
 }
 
+function budgetList(value: string): BudgetChoice[] {
+  return value.split(',').map((item) => {
+    const m = /^\s*(\d+)\/(\d+)\s*$/.exec(item);
+    const window = Number(m?.[1]);
+    const reserve = Number(m?.[2]);
+    if (!m || window <= 0 || reserve >= window) throw new InvalidArgumentError(`expected WINDOW/RESERVE pairs with reserve < window, e.g. 4096/512,8192/1024 (got "${item}")`);
+    return { window, reserve };
+  });
+}
+function modelList(value: string): ModelChoice[] {
+  return value.split(',').map((item) => {
+    const [name, encoding, weight = '1'] = item.trim().split(':');
+    if (!name || !encoding || !isEncodingName(encoding) || !(Number(weight) > 0))
+      throw new InvalidArgumentError(`expected NAME:ENCODING[:WEIGHT] with encoding cl100k_base or o200k_base (got "${item}")`);
+    return { name, encoding, weight: Number(weight) };
+  });
+}
+
 interface GenFlags {
+  budgets?: BudgetChoice[];
+  models?: ModelChoice[];
   turns?: number;
   seed: number;
   out?: string;
@@ -80,6 +100,8 @@ async function run(flags: GenFlags): Promise<void> {
     concurrency: flags.concurrency,
     minTurns: flags.minTurns,
     maxTurns: flags.maxTurns,
+    budgets: flags.budgets,
+    models: flags.models,
   };
 
   let sink: NodeJS.WritableStream = process.stdout;
@@ -152,6 +174,8 @@ const program = new Command('gen')
   .option('--concurrency <n>', 'conversations open at once (records interleave)', positiveInt)
   .option('--min-turns <n>', 'fewest turns per conversation (default 3)', positiveInt)
   .option('--max-turns <n>', 'most turns per conversation (default 40)', positiveInt)
+  .option('--budgets <list>', 'window/reserve choices, e.g. 2048/512,4096/512,8192/1024,16384/2048 (the default)', budgetList)
+  .option('--models <list>', 'model choices NAME:ENCODING[:WEIGHT], e.g. gpt-4o-mini:o200k_base:6,gpt-4o:o200k_base:2,gpt-4:cl100k_base:2 (the default)', modelList)
   .option('--no-progress', 'no progress lines on stderr')
   // Usage errors exit 2 (as the spillway CLI does); --help exits 0.
   .exitOverride((err) => process.exit(err.exitCode === 0 ? 0 : 2))
