@@ -57,6 +57,8 @@ export class PanelApp {
   private readonly turnBody: HTMLElement;
   private readonly overviewBody: HTMLElement;
   readonly list: TurnList;
+  /** Kept across renders: replacing the widget while it handles its own click loses the click. */
+  private readonly boundaryToggle: HTMLElement & { checked?: boolean };
 
   constructor(root: HTMLElement, private readonly api: VsCodeApi, private readonly opts: PanelAppOptions = {}) {
     this.root = root;
@@ -66,6 +68,12 @@ export class PanelApp {
     this.list = new TurnList({ rowHeight: ROW_HEIGHT, requestPage: (offset, limit) => this.post({ type: 'requestTurns', requestId: this.id('turns'), offset, limit }), onSelect: (line) => this.selectTurn(line, true) });
     this.turnBody = h('div', { class: 'turn-view' }, h('p', { class: 'empty' }, 'Open a Spillway log (.jsonl) in the editor to see each turn’s ledger here.'));
     this.overviewBody = h('div', { class: 'overview-view' });
+    this.boundaryToggle = h('vscode-checkbox', { label: 'Show token boundaries', class: 'boundary-toggle' });
+    this.boundaryToggle.addEventListener('change', () => {
+      this.showBoundaries = Boolean(this.boundaryToggle.checked);
+      if (this.showBoundaries) this.askBoundaries();
+      this.renderTurn();
+    });
     const logPanel = h('div', {}, this.overviewBody, section('All turns', 'h-all-turns', this.list.element));
 
     this.tabs = h('vscode-tabs', { class: 'tabs', panel: true });
@@ -233,6 +241,7 @@ export class PanelApp {
     const now = this.opts.now ?? (() => performance.now());
     const done = (): void => {
       const ms = Math.round((now() - (this.opts.scriptStart ?? 0)) * 10) / 10;
+      performance.mark?.('spillway:first-paint');
       this.post({ type: 'metric', name: 'firstPaintMs', value: ms });
       this.opts.onFirstPaint?.(ms);
     };
@@ -275,12 +284,8 @@ export class PanelApp {
 
     const selected = d.segments.find((sg) => sg.id === this.state.segmentId);
     const boundaries = selected ? this.boundaries.get(`${r.line}:${selected.id}`) : undefined;
-    const checkbox = h('vscode-checkbox', { label: 'Show token boundaries', checked: this.showBoundaries }, 'Show token boundaries') as HTMLElement & { checked?: boolean };
-    checkbox.addEventListener('change', () => {
-      this.showBoundaries = Boolean(checkbox.checked);
-      if (this.showBoundaries) this.askBoundaries();
-      this.renderTurn();
-    });
+    const checkbox = this.boundaryToggle;
+    checkbox.checked = this.showBoundaries;
 
     const notes: Array<Node | null> = [];
     if (d.usage) notes.push(h('p', {}, `API-reported prompt tokens: ${int(d.usage.prompt)} (drift ${d.usage.drift >= 0 ? '+' : ''}${int(d.usage.drift)} against the ledger).`));
@@ -310,6 +315,10 @@ export class PanelApp {
       ),
       notes.length ? section('Notes', 'h-notes', ...notes) : null,
     );
+    // Long texts scroll inside their box: bring the cut into view so it is seen without hunting.
+    const box = this.turnBody.querySelector<HTMLElement>('.passage-text');
+    const mark = box?.querySelector<HTMLElement>('.cut-mark');
+    if (box && mark && box.scrollHeight > box.clientHeight) box.scrollTop = Math.max(0, mark.offsetTop - box.clientHeight / 2);
     if (focusedId) Array.from(this.turnBody.querySelectorAll<HTMLElement>('tr[data-id]')).find((tr) => tr.dataset.id === focusedId)?.focus();
     if (focusedTimeline) this.turnBody.querySelector<SVGGElement>('g.tl-turn[tabindex="0"]')?.focus();
   }

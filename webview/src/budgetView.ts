@@ -62,19 +62,21 @@ export function renderBudgetTable(bar: BudgetBar): HTMLTableElement {
         { 'data-part': p.key },
         h('th', { scope: 'row' }, h('span', { class: `swatch part-${p.key}`, 'aria-hidden': 'true' }), PART_LABEL[p.key]),
         h('td', { class: 'num' }, int(p.tokens)),
-        h('td', { class: 'num' }, pct(p.tokens, bar.budget)),
+        // The reserve is outside the budget by definition, so only its share of the window means something.
+        h('td', { class: 'num' }, p.key === 'reserve' ? '–' : pct(p.tokens, bar.budget)),
+        h('td', { class: 'num' }, pct(p.tokens, bar.window)),
       ),
     );
   }
   if (bar.over > 0)
     body.appendChild(
-      h('tr', { class: 'row-over', 'data-part': 'over' }, h('th', { scope: 'row' }, '⚠ over budget'), h('td', { class: 'num' }, int(bar.over)), h('td', { class: 'num' }, pct(bar.over, bar.budget))),
+      h('tr', { class: 'row-over', 'data-part': 'over' }, h('th', { scope: 'row' }, '⚠ over budget'), h('td', { class: 'num' }, int(bar.over)), h('td', { class: 'num' }, pct(bar.over, bar.budget)), h('td', { class: 'num' }, pct(bar.over, bar.window))),
     );
   return h(
     'table',
     { class: 'budget-table', 'aria-label': 'Budget by kind' },
-    h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'part'), h('th', { scope: 'col', class: 'num' }, 'tokens'), h('th', { scope: 'col', class: 'num' }, '% of budget'))),
+    h('thead', {}, h('tr', {}, h('th', { scope: 'col' }, 'part'), h('th', { scope: 'col', class: 'num' }, 'tokens'), h('th', { scope: 'col', class: 'num' }, '% of budget'), h('th', { scope: 'col', class: 'num' }, '% of window'))),
     body,
-    h('tfoot', {}, h('tr', {}, h('th', { scope: 'row' }, 'used / budget'), h('td', { class: 'num' }, `${int(bar.used)} / ${int(bar.budget)}`), h('td', { class: 'num' }, pct(bar.used, bar.budget)))),
+    h('tfoot', {}, h('tr', {}, h('th', { scope: 'row' }, 'used / budget'), h('td', { class: 'num' }, `${int(bar.used)} / ${int(bar.budget)}`), h('td', { class: 'num' }, pct(bar.used, bar.budget)), h('td', { class: 'num' }, pct(bar.used, bar.window)))),
   );
 }

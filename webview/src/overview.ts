@@ -21,9 +21,10 @@ function histogram(counts: readonly number[]): SVGSVGElement {
     const hgt = (c / max) * (base - 16);
     const x0 = 5 + i * step;
     const over = i === n - 1;
-    svg.appendChild(s('rect', { class: `hist-bar${over ? ' hist-over' : ''}`, x: x0 + 2, y: base - hgt, width: step - 4, height: hgt }, s('title', {}, `${bucketLabel(i, n)} of budget: ${int(c)} turns (${pct(c, total)})`)));
+    // The last bucket holds full turns (exactly 100%) as well as over-budget ones: marked, not alarmed.
+    svg.appendChild(s('rect', { class: `hist-bar${over ? ' hist-full' : ''}`, x: x0 + 2, y: base - hgt, width: step - 4, height: hgt }, s('title', {}, `${bucketLabel(i, n)} of budget${over ? ' (full or over)' : ''}: ${int(c)} turns (${pct(c, total)})`)));
     if (c > 0) svg.appendChild(s('text', { class: 'axis', x: x0 + step / 2, y: base - hgt - 3, 'text-anchor': 'middle' }, int(c)));
-    svg.appendChild(s('text', { class: 'axis', x: x0 + step / 2, y: base + 13, 'text-anchor': 'middle' }, over ? '≥100' : String(i * 10)));
+    svg.appendChild(s('text', { class: 'axis', x: x0 + step / 2, y: base + 13, 'text-anchor': 'middle' }, over ? '100+' : String(i * 10)));
   });
   svg.appendChild(s('text', { class: 'axis', x: W / 2, y: HH - 2, 'text-anchor': 'middle' }, '% of budget used'));
   return svg;

@@ -94,7 +94,7 @@ export function renderSegmentTable(o: SegmentTableOptions): HTMLTableElement {
       'tr',
       { class: `seg-row fate-row-${seg.fate}`, 'data-id': seg.id, 'aria-selected': selected ? 'true' : 'false', tabindex: selected || (!hasSelected && pos === 0) ? 0 : -1, 'aria-label': `${seg.kind} ${seg.id}${seg.rank !== undefined ? `, rank ${seg.rank}` : ''}, ${int(seg.tokens)} tokens, ${seg.fate}` },
       h('td', { class: 'num' }, i + 1),
-      h('td', { class: 'seg-id' }, seg.id),
+      h('td', { class: 'seg-id', title: seg.id }, seg.id),
       h('td', {}, seg.kind),
       h('td', {}, seg.role),
       h('td', { class: 'num rank' }, seg.rank ?? '–'),

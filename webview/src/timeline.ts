@@ -50,14 +50,15 @@ export function renderTimeline(o: TimelineOptions): HTMLElement {
   const rows = [...o.rows].sort((a, b) => a.turn - b.turn || a.line - b.line);
   const n = Math.max(1, rows.length);
   const step = Math.max(10, Math.min(44, 620 / n));
-  const width = LEFT + n * step + 12;
+  // Right margin holds the budget label, clear of the bars.
+  const width = LEFT + n * step + 78;
   const yMax = Math.max(1, ...rows.map((r) => Math.max(r.budget, r.used))) * 1.06;
   const y = (v: number): number => BOTTOM - (v / yMax) * (BOTTOM - TOP);
   const svg = s('svg', { class: 'timeline', width, height: H, viewBox: `0 0 ${width} ${H}`, role: 'group', 'aria-label': `Conversation ${o.conversation}: kept tokens by kind per turn against the budget` });
 
   const tick = niceStep(yMax);
   for (let v = 0; v <= yMax; v += tick) {
-    svg.appendChild(s('line', { class: 'grid', x1: LEFT, x2: width - 6, y1: y(v), y2: y(v) }));
+    svg.appendChild(s('line', { class: 'grid', x1: LEFT, x2: LEFT + n * step, y1: y(v), y2: y(v) }));
     svg.appendChild(s('text', { class: 'axis', x: LEFT - 5, y: y(v) + 4, 'text-anchor': 'end' }, short(v)));
   }
   const barW = Math.max(4, step * 0.72);
@@ -92,7 +93,7 @@ export function renderTimeline(o: TimelineOptions): HTMLElement {
   });
   if (d) svg.appendChild(s('path', { class: 'budget-line', d: d.trim() }));
   const last = rows[rows.length - 1];
-  if (last) svg.appendChild(s('text', { class: 'axis budget-label', x: width - 8, y: y(last.budget) - 4, 'text-anchor': 'end' }, `budget ${int(last.budget)}`));
+  if (last) svg.appendChild(s('text', { class: 'axis budget-label', x: LEFT + n * step + 4, y: y(last.budget) + 4 }, `budget ${int(last.budget)}`));
   svg.appendChild(s('text', { class: 'axis', x: LEFT, y: H - 4 }, 'turn →'));
 
   // Roving focus: the selected turn (or the first) holds the tab stop.
