@@ -20,8 +20,14 @@ async function firstLines(path: string, n: number): Promise<string[]> {
   return out;
 }
 
-export async function runInspect(input: string, f: ImportCliFlags, write: (s: string) => void = (s) => process.stdout.write(s)): Promise<number> {
+export interface InspectCliOptions extends ImportCliFlags {
+  limit?: string;
+}
+
+export async function runInspect(input: string, f: InspectCliOptions, write: (s: string) => void = (s) => process.stdout.write(s)): Promise<number> {
   const { from: given, opts } = importOptionsFrom(f);
+  if (f.limit !== undefined && !/^\d+$/.test(f.limit)) throw new UsageError(`--limit must be a whole number, got "${f.limit}"`);
+  const limit = f.limit === undefined ? Infinity : Number(f.limit);
   let from = given;
   if (!from) {
     const d = detectFormat(await firstLines(input, 5));
@@ -35,10 +41,10 @@ export async function runInspect(input: string, f: ImportCliFlags, write: (s: st
   const issues: string[] = [];
   for await (const e of convertLines(readLogLines(chunks), from, opts)) {
     if (e.type === 'record') {
-      records++;
-      write(formatInspection(e.record, e.explain).join('\n') + '\n\n');
+      if (records++ < limit) write(formatInspection(e.record, e.explain).join('\n') + '\n\n');
     } else issues.push(formatIssue(input, e.issue));
   }
+  if (records > limit) write(`… ${records - limit} more record${records - limit === 1 ? '' : 's'} not shown (--limit ${limit})\n`);
   write(`${records} record${records === 1 ? '' : 's'}; ${issues.length} issue${issues.length === 1 ? '' : 's'}${issues.length ? ':' : ''}\n`);
   for (const i of issues) write(`  ${i}\n`);
   return EXIT.ok;
@@ -50,6 +56,7 @@ export function registerInspect(program: Command, setExit: (code: number) => voi
       .command('inspect')
       .description('show how a chat log or trace file maps to Spillway records, message by message (writes nothing)')
       .argument('<file>', 'chat request log (JSON Lines) or OTLP/JSON file')
-      .option('--from <format>', 'chat or otlp (default: recognised from the first lines)'),
-  ).action(async (input: string, o: ImportCliFlags) => setExit(await runInspect(input, o)));
+      .option('--from <format>', 'chat or otlp (default: recognised from the first lines)')
+      .option('--limit <n>', 'show the mapping of the first n records only (issues and the count cover the whole file)'),
+  ).action(async (input: string, o: InspectCliOptions) => setExit(await runInspect(input, o)));
 }

@@ -329,7 +329,15 @@ const iso = (ns: bigint): string | undefined => (ns > 0n ? new Date(Number(ns / 
 export function importSpans(spans: FlatSpan[], o: ResolvedImportOptions): { results: Array<ImportedRecord & { line: number }>; issues: LogIssue[] } {
   const issues: LogIssue[] = [];
   const byTrace = new Map<string, FlatSpan[]>();
+  const seen = new Set<string>();
   for (const s of spans) {
+    // Exporters may write a span twice (e.g. after a retried batch): keep the first copy.
+    const key = `${s.traceId}/${s.spanId}`;
+    if (s.spanId && seen.has(key)) {
+      issues.push({ line: s.line, column: 1, code: 'import-duplicate-span', message: `span ${s.spanId} of trace ${s.traceId} appears again; the first copy is used` });
+      continue;
+    }
+    seen.add(key);
     const role = spanRole(s);
     if (role === 'other') continue;
     if (role === 'other-genai') {
@@ -373,7 +381,9 @@ function importInference(s: FlatSpan, retrievals: FlatSpan[], o: ResolvedImportO
   const consumed = new Set(CONSUMED);
   const input = inputMessages(s, consumed);
   if (!input) {
-    at('import-unmapped', `"${s.name}" records no input messages (gen_ai.input.messages is opt-in content capture); not imported`);
+    const raw = s.attrs['gen_ai.input.messages'];
+    if (typeof raw === 'string') at('import-unmapped', `gen_ai.input.messages is a string that is not a JSON message list; not imported`);
+    else at('import-unmapped', `"${s.name}" records no input messages (gen_ai.input.messages is opt-in content capture); not imported`);
     return { issues };
   }
   // Retrieval documents: by id against the passages the splitter finds, else by their text in a message.

@@ -89,11 +89,12 @@ describe('spillway inspect', () => {
   it('recognises the format and lists, per record, each message\'s mapping and the issues', async () => {
     const d = workDir();
     let out = '';
-    await runInspect(join(d, 'chat.jsonl'), {}, (s) => (out += s));
+    await runInspect(join(d, 'chat.jsonl'), { limit: '2' }, (s) => (out += s));
     expect(out).toMatch(/recognised as a chat request log/);
     expect(out).toMatch(/message 1 \(user\) → prompt message 1: last user message → query; 3 passages found by tag <doc> \(auto\)/);
     expect(out).toMatch(/passage\s+kb-ferry-3 {2}\(160 chars, rank 1\)/);
-    expect(out).toMatch(/5 records; 8 issues:/);
+    expect(out).toMatch(/… 3 more records not shown \(--limit 2\)\n5 records; 8 issues:/);
+    expect(out).not.toMatch(/line 3: chat line 3/);
     let otel = '';
     await runInspect(join(d, 'traces.jsonl'), { splitter: 'none' }, (s) => (otel += s));
     expect(otel).toMatch(/recognised as OTLP\/JSON traces/);

@@ -129,3 +129,24 @@ describe('OTLP/JSON import (fixture otel-traces.jsonl)', () => {
     ]);
   });
 });
+
+describe('OTLP edge cases', () => {
+  const lines = text.split('\n');
+  it('a span exported twice is used once and reported', () => {
+    const r = convertText([lines[1], lines[1]].join('\n'), 'otlp');
+    expect(r.records).toHaveLength(1);
+    expect(r.issues.map((i) => [i.line, i.code])).toEqual([
+      [1, 'import-no-retrieval'],
+      [2, 'import-duplicate-span'],
+    ]);
+  });
+
+  it('input messages that are not JSON are reported, not guessed', () => {
+    const doc = JSON.parse(lines[1]!);
+    const attrs = doc.resourceSpans[0].scopeSpans[0].spans[0].attributes as Array<{ key: string; value: unknown }>;
+    attrs.find((a) => a.key === 'gen_ai.input.messages')!.value = { stringValue: '[{"role": "user", "parts": [' };
+    const r = convertText(JSON.stringify(doc), 'otlp');
+    expect(r.records).toHaveLength(0);
+    expect(r.issues[0]!.message).toMatch(/not a JSON message list/);
+  });
+});
