@@ -17,6 +17,9 @@ import { words } from './normalize';
 
 export const BM25_PARAMS = { k: 1.2, b: 0.7, d: 0.5 } as const;
 
+/** Distinct query terms per minisearch search (see `bm25Scorer`). */
+const QUERY_CHUNK = 32;
+
 /** BM25+ score of every doc against `query` (0 for docs sharing no term). Ids must be unique. */
 export function bm25Scores(query: string, docs: readonly { id: string; text: string }[]): Map<string, number> {
   return bm25Scorer(docs)(query);
@@ -44,16 +47,20 @@ export function bm25Scorer(docs: readonly { id: string; text: string }[], tokeni
     const scores = new Map<string, number>();
     for (const doc of docs) scores.set(doc.id, 0);
     if (docs.length === 0) return scores;
-    // Search each distinct term once, boosted by its count: the same sum as repeating it, but a
-    // long reply costs one lookup per distinct word (minisearch's per-term overhead is high).
+    // Search each distinct term once, boosted by its count: the same sum as repeating it. Terms go
+    // in chunks because minisearch merges matched terms with Array#includes (quadratic in the
+    // number of distinct terms a document matches); BM25+ is a sum over query terms, so the
+    // chunk scores (each divided by its own coordination factor) add up to the same figure.
     const counts = new Map<string, number>();
     for (const t of tokenize(query)) counts.set(t, (counts.get(t) ?? 0) + 1);
-    const distinct = [...counts.keys()].join(' ');
     const boostTerm = (term: string): number => counts.get(term) ?? 1;
-    for (const hit of index.search(distinct, { boostTerm })) {
-      const doc = docs[hit.id as number];
-      // minisearch multiplies by the number of distinct query terms matched; divide it back out.
-      if (doc) scores.set(doc.id, hit.score / Math.max(1, hit.queryTerms.length));
+    const terms = [...counts.keys()];
+    for (let at = 0; at < terms.length; at += QUERY_CHUNK) {
+      for (const hit of index.search(terms.slice(at, at + QUERY_CHUNK).join(' '), { boostTerm })) {
+        const doc = docs[hit.id as number];
+        // minisearch multiplies by the number of distinct query terms matched; divide it back out.
+        if (doc) scores.set(doc.id, scores.get(doc.id)! + hit.score / Math.max(1, hit.queryTerms.length));
+      }
     }
     return scores;
   };
