@@ -303,10 +303,10 @@ function nextRecord(
   if (rng.chance(0.5)) replyParts.push('Is there anything else I can help with?');
   const reply = replyParts.join(' ');
 
-  const segments: Segment[] = [{ id: 'sys', kind: 'instructions', role: 'system', text: conv.instructions }];
+  const segments: Segment[] = [{ id: 'instructions', kind: 'instructions', role: 'system', text: conv.instructions }];
   for (const h of conv.history) segments.push(h.user, h.assistant);
   segments.push(...passages);
-  segments.push({ id: 'q', kind: 'query', role: 'user', text: query });
+  segments.push({ id: 'query', kind: 'query', role: 'user', text: query });
 
   const record: LogRecord = {
     v: 1,
@@ -334,8 +334,8 @@ function nextRecord(
   }
 
   conv.history.push({
-    user: { id: `h${turn}-u`, kind: 'history', role: 'user', turn, text: query },
-    assistant: { id: `h${turn}-a`, kind: 'history', role: 'assistant', turn, text: reply },
+    user: { id: `t${turn}-user`, kind: 'history', role: 'user', turn, text: query },
+    assistant: { id: `t${turn}-assistant`, kind: 'history', role: 'assistant', turn, text: reply },
   });
   return record;
 }
