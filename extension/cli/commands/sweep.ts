@@ -3,7 +3,8 @@ import type { Command } from 'commander';
 import { readLog } from '../../core/log/reader';
 import { sweep, SweepCancelled, type SweepResult } from '../../core/repack/sweep';
 import { formatTable } from '../../core/audit/text';
-import { PlanError } from '../../core/pack/plans';
+import { parsePlan, PlanError } from '../../core/pack/plans';
+import { withTop } from '../../core/pack/plans/spec';
 import { ENCODINGS, isEncodingName } from '../../core/tokens/encoder';
 import { EXIT, openLog, parseTokens, UsageError } from '../io';
 import { pricesFrom, progressReporter, withInterrupt } from './repack';
@@ -47,6 +48,12 @@ export async function runSweep(file: string, o: SweepCliOptions): Promise<number
   if (o.encoding !== undefined && !isEncodingName(o.encoding)) throw new UsageError(`unknown encoding "${o.encoding}" (valid: ${ENCODINGS.join(', ')})`);
   const reserve = o.reserve !== undefined ? parseTokens(o.reserve, '--reserve') : undefined;
   const prices = pricesFrom(o.pricePerMillion);
+  // Plans are checked before the log is opened (exit 2 with the valid list).
+  try {
+    for (const p of plans) for (const k of ks ?? [null]) parsePlan(k === null ? p : withTop(p, k));
+  } catch (e) {
+    throw new UsageError((e as Error).message);
+  }
   const { chunks, size } = await openLog(file);
   const t0 = performance.now();
   let r: SweepResult;

@@ -11,7 +11,7 @@ let acct: Accountant;
 beforeAll(async () => {
   acct = await Accountant.create();
   await acct.encoder('cl100k_base');
-});
+}, 60_000);
 
 const pack = (record: LogRecord, budget: number, plan: string) => repackRecord(record, { budget, plan }, acct);
 
