@@ -218,10 +218,10 @@ export function importChatLine(text: string, line: number, o: ResolvedImportOpti
     const pos = /position (\d+)/.exec((e as Error).message);
     return { issues: [{ line, column: pos ? Number(pos[1]) + 1 : 1, code: 'bad-json', message: `bad JSON: ${(e as Error).message}` }] };
   }
-  if (!isObject(value)) return { issues: [{ line, column: 1, code: 'import-unmapped', message: 'a chat log line must be a JSON object' }] };
+  if (!isObject(value)) return { issues: [{ line, column: 1, code: 'import-skipped', message: 'a chat log line must be a JSON object; line skipped' }] };
   const req = isObject(value['request']) ? value['request'] : value;
   const key = ['messages', 'contents', 'input'].find((k) => Array.isArray(req[k])) ?? (req !== value ? ['messages', 'contents'].find((k) => Array.isArray(value[k])) : undefined);
-  if (!key) return { issues: [{ line, column: 1, code: 'import-unmapped', message: 'no "messages" array: not a chat request; line skipped' }] };
+  if (!key) return { issues: [{ line, column: 1, code: 'import-skipped', message: 'no "messages" array: not a chat request; line skipped' }] };
   const holder = Array.isArray(req[key]) ? req : value;
   const msgPath: Array<string | number> = holder === value ? [key] : ['request', key];
 

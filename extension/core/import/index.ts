@@ -196,3 +196,24 @@ export function convertText(text: string, from: ImportFormat, opts?: ImportOptio
   take(c.finish());
   return out;
 }
+
+/** Codes of issues where a line or span gave no record at all (the others annotate a converted record). */
+export const SKIP_CODES: ReadonlySet<string> = new Set(['bad-json', 'bad-encoding', 'line-too-long', 'import-skipped', 'import-bad-splitter']);
+
+/**
+ * Imported records in the reader's item shape, for `auditItems` (e.g. `spillway audit --from chat`
+ * or the editor): records plus the issues of lines that gave no record. Notes about converted records
+ * (merged passages, parts not counted, …) are left out unless `notes` is set, so they do not count
+ * as malformed lines in an audit summary.
+ */
+export async function* importedLogItems(
+  lines: AsyncIterable<SourceLine | { issue: LogIssue }> | Iterable<SourceLine | { issue: LogIssue }>,
+  from: ImportFormat,
+  opts?: ImportOptions,
+  notes = false,
+): AsyncGenerator<LocatedRecord | { issue: LogIssue }> {
+  for await (const e of convertLines(lines, from, opts)) {
+    if (e.type === 'record') yield e.record;
+    else if (notes || SKIP_CODES.has(e.issue.code)) yield { issue: e.issue };
+  }
+}

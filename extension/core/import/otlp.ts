@@ -341,7 +341,7 @@ export function importSpans(spans: FlatSpan[], o: ResolvedImportOptions): { resu
     const role = spanRole(s);
     if (role === 'other') continue;
     if (role === 'other-genai') {
-      issues.push({ line: s.line, column: 1, code: 'import-unmapped', message: `span ${s.spanId} "${s.name}": operation "${String(s.attrs['gen_ai.operation.name'] ?? '?')}" is not a model call or retrieval; not imported` });
+      issues.push({ line: s.line, column: 1, code: 'import-skipped', message: `span ${s.spanId} "${s.name}": operation "${String(s.attrs['gen_ai.operation.name'] ?? '?')}" is not a model call or retrieval; not imported` });
       continue;
     }
     let list = byTrace.get(s.traceId);
@@ -354,7 +354,7 @@ export function importSpans(spans: FlatSpan[], o: ResolvedImportOptions): { resu
     list.sort((a, b) => cmp(a.start, b.start) || a.line - b.line);
     const inferences = list.filter((s) => spanRole(s) === 'inference');
     if (!inferences.length) {
-      for (const s of list) issues.push({ line: s.line, column: 1, code: 'import-unmapped', message: `span ${s.spanId} "${s.name}": trace ${traceId} has no model-call span to attach this ${spanRole(s)} span to` });
+      for (const s of list) issues.push({ line: s.line, column: 1, code: 'import-skipped', message: `span ${s.spanId} "${s.name}": trace ${traceId} has no model-call span to attach this ${spanRole(s)} span to` });
       continue;
     }
     inferences.forEach((inf, k) => {
@@ -366,7 +366,7 @@ export function importSpans(spans: FlatSpan[], o: ResolvedImportOptions): { resu
     });
     for (const s of list) {
       if ((spanRole(s) === 'retrieval' || spanRole(s) === 'tool') && s.start > inferences.at(-1)!.start) {
-        issues.push({ line: s.line, column: 1, code: 'import-unmapped', message: `span ${s.spanId} "${s.name}" starts after the last model call of trace ${traceId}; its results did not reach a prompt and are not imported` });
+        issues.push({ line: s.line, column: 1, code: 'import-skipped', message: `span ${s.spanId} "${s.name}" starts after the last model call of trace ${traceId}; its results did not reach a prompt and are not imported` });
       }
     }
   }
@@ -382,8 +382,8 @@ function importInference(s: FlatSpan, retrievals: FlatSpan[], o: ResolvedImportO
   const input = inputMessages(s, consumed);
   if (!input) {
     const raw = s.attrs['gen_ai.input.messages'];
-    if (typeof raw === 'string') at('import-unmapped', `gen_ai.input.messages is a string that is not a JSON message list; not imported`);
-    else at('import-unmapped', `"${s.name}" records no input messages (gen_ai.input.messages is opt-in content capture); not imported`);
+    if (typeof raw === 'string') at('import-skipped', `gen_ai.input.messages is a string that is not a JSON message list; not imported`);
+    else at('import-skipped', `"${s.name}" records no input messages (gen_ai.input.messages is opt-in content capture); not imported`);
     return { issues };
   }
   // Retrieval documents: by id against the passages the splitter finds, else by their text in a message.
@@ -508,7 +508,7 @@ export function spansOfLine(text: string, line: number): { spans: FlatSpan[]; is
     return { spans: [], issue: { line, column: pos ? Number(pos[1]) + 1 : 1, code: 'bad-json', message: `bad JSON: ${(e as Error).message}` } };
   }
   if (!isObject(doc) || !Array.isArray(doc['resourceSpans'])) {
-    return { spans: [], issue: { line, column: 1, code: 'import-unmapped', message: 'not an OTLP/JSON traces object (no "resourceSpans"); line skipped' } };
+    return { spans: [], issue: { line, column: 1, code: 'import-skipped', message: 'not an OTLP/JSON traces object (no "resourceSpans"); line skipped' } };
   }
   return { spans: flattenTraces(doc, () => line) };
 }

@@ -108,7 +108,7 @@ describe('chat-message log import (fixture chat-requests.jsonl)', () => {
     const rest = result.issues.filter((i) => i.line >= 5).map((i) => [i.line, i.code]);
     expect(rest).toEqual([
       [5, 'bad-json'],
-      [6, 'import-unmapped'],
+      [6, 'import-skipped'],
       [7, 'import-unmapped'],
     ]);
     const bad = result.issues.find((i) => i.line === 5)!;

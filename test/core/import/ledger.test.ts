@@ -110,3 +110,22 @@ describe('the ledger of an imported record equals the ledger of the same prompt 
     expect(l!.used).toBe(refChatTokens('o200k_base', messages));
   });
 });
+
+describe('imported records open in the audit directly', () => {
+  it('auditing importedLogItems equals auditing the converted log file', async () => {
+    const { auditItems } = await import('../../../extension/core/audit/audit');
+    const { importedLogItems, textLines } = await import('../../../extension/core/import/index');
+    const direct = await auditItems(importedLogItems(textLines(chatText), 'chat'), {});
+    const converted = convertText(chatText, 'chat').records.map((r) => JSON.stringify(r.record)).join('\n') + '\n';
+    const viaFile = await auditText(converted, {});
+    // same ledgers apart from the line (source line vs converted-log line)
+    expect(direct.records.map((l) => ({ ...l, line: 0 }))).toEqual(viaFile.records.map((l) => ({ ...l, line: 0 })));
+    expect(direct.records.map((l) => l.line)).toEqual([1, 2, 3, 4, 7]);
+    // only the lines that gave no record count as malformed: the broken line 5 and the heartbeat line 6
+    expect(direct.errors.map((e) => [e.line, e.code])).toEqual([
+      [5, 'bad-json'],
+      [6, 'import-skipped'],
+    ]);
+    expect(direct.summary.malformed).toBe(2);
+  });
+});

@@ -77,7 +77,7 @@ describe('OTLP/JSON import (fixture otel-traces.jsonl)', () => {
     expect(r.usage).toEqual({ prompt: 92, completion: 21 });
     expect(r.reply).toBe('Yes. Before 09:30 on weekdays you need a Bike Carriage Permit on buses.');
     expect((r['otel'] as { attributes: Record<string, unknown> }).attributes).toEqual({ 'gen_ai.system': 'openai' });
-    expect(result.issues.filter((x) => x.line === 5).map((x) => x.code)).toEqual(['import-unmapped']);
+    expect(result.issues.filter((x) => x.line === 5).map((x) => x.code)).toEqual(['import-skipped']);
     expect(result.issues.find((x) => x.line === 5)!.message).toMatch(/invoke_agent/);
   });
 
@@ -125,7 +125,7 @@ describe('OTLP/JSON import (fixture otel-traces.jsonl)', () => {
     expect(r.records.map((x) => x.line)).toEqual([1, 4]);
     expect(r.issues.filter((i) => i.line === 2 || i.line === 3).map((i) => [i.line, i.code])).toEqual([
       [2, 'bad-json'],
-      [3, 'import-unmapped'],
+      [3, 'import-skipped'],
     ]);
   });
 });
