@@ -13,6 +13,7 @@ const dir = 'sample-workspace/logs';
 
 describe('analysis on the sample logs', () => {
   const all: TurnAnalysis[] = [];
+  // Generous hook timeout: the ledger tokenises every log with the real encoder.
   beforeAll(async () => {
     await loadShingleHasher();
     for (const f of readdirSync(dir).filter((n) => n.endsWith('.jsonl'))) {
@@ -28,7 +29,7 @@ describe('analysis on the sample logs', () => {
         all.push(a);
       }
     }
-  });
+  }, 180_000);
 
   it('shows supported, unsupported and lost sentences somewhere in the demo', () => {
     const s = summariseAnalyses(all);
