@@ -3,9 +3,11 @@
  *
  * Method `dp` (default while n × C ≤ DP_CELL_LIMIT): the textbook dynamic programme over capacity,
  * best[c] = max(best[c], best[c − cost_i] + value_i) for c from C down to cost_i, item by item, with
- * one bit per (item, capacity) to recover the chosen set. Time O(n·C), memory O(C) doubles +
- * n·C bits, where C = min(capacity, Σ cost) / g and g is the gcd of all costs and the capacity
- * (an exact rescaling). For a 1M-token room and 64 passages: 64M cell updates, an 8 MB bitset.
+ * one bit per (item, capacity) to recover the chosen set, where C = min(capacity, Σ cost) / g and g
+ * is the gcd of all costs and the capacity (an exact rescaling). Item k only visits capacities in
+ * [C − Σ_{j>k} cost_j, Σ_{j≤k} cost_j], so the work is at most n·min(C, excess + max cost) where
+ * excess = Σ cost − C: O(n·C) time in the worst case, O(C) doubles + n·C bits of memory. For a
+ * 1M-token room and 64 passages: at most 64M cell updates and an 8 MB bitset.
  *
  * Method `bnb` (used above the cell limit): depth-first branch and bound, items by value density,
  * bounded by the fractional (Dantzig) relaxation — exact, usually fast, exponential in the worst case.
@@ -46,29 +48,48 @@ export function knapsack(costs: readonly number[], values: readonly number[], ca
 }
 
 function dp(items: readonly number[], costs: readonly number[], values: readonly number[], C: number, g: number): number[] {
+  const n = items.length;
+  const w = items.map((it) => costs[it]! / g);
+  // prefix[k] = Σ w[0..k], suffix[k] = Σ w[k..n−1]: item k only needs capacities in
+  // [C − suffix[k+1], prefix[k]] — below, no later item or the answer ever reads the cell; above,
+  // every item so far fits, so the value is best[prefix[k]] and is not stored.
+  const prefix: number[] = [];
+  let run = 0;
+  for (const x of w) prefix.push((run += x));
+  const suffix: number[] = new Array<number>(n + 1).fill(0);
+  for (let k = n - 1; k >= 0; k--) suffix[k] = suffix[k + 1]! + w[k]!;
   const best = new Float64Array(C + 1);
   const row = C + 1;
-  const take = new Uint8Array(Math.ceil((items.length * row) / 8));
-  items.forEach((item, n) => {
-    const w = costs[item]! / g;
-    const v = values[item]!;
-    const base = n * row;
-    for (let c = C; c >= w; c--) {
-      const cand = best[c - w]! + v;
+  const take = new Uint8Array(Math.ceil((n * row) / 8));
+  for (let k = 0; k < n; k++) {
+    const wk = w[k]!;
+    const v = values[items[k]!]!;
+    const base = k * row;
+    const hi = Math.min(C, prefix[k]!);
+    const lo = Math.max(wk, C - suffix[k + 1]!);
+    // Cells above the previous prefix were not stored: without item k they hold "everything so far".
+    const prev = k === 0 ? 0 : Math.min(C, prefix[k - 1]!);
+    for (let c = prev + 1; c <= hi; c++) best[c] = best[prev]!;
+    for (let c = hi; c >= lo; c--) {
+      const cand = best[c - wk]! + v;
       if (cand > best[c]!) {
         best[c] = cand;
         const bit = base + c;
         take[bit >> 3]! |= 1 << (bit & 7);
       }
     }
-  });
+  }
   const chosen: number[] = [];
   let c = C;
-  for (let n = items.length - 1; n >= 0; n--) {
-    const bit = n * row + c;
+  for (let k = n - 1; k >= 0; k--) {
+    if (c >= prefix[k]!) {
+      for (let j = k; j >= 0; j--) chosen.push(items[j]!);
+      break;
+    }
+    const bit = k * row + c;
     if (take[bit >> 3]! & (1 << (bit & 7))) {
-      chosen.push(items[n]!);
-      c -= costs[items[n]!]! / g;
+      chosen.push(items[k]!);
+      c -= w[k]!;
     }
   }
   return chosen;
