@@ -19,7 +19,7 @@ await mkdir('dist/webview', { recursive: true });
 await Promise.all([
   ...nodeTargets.map((t) => build({ ...common, platform: 'node', format: 'cjs', target: 'node20', ...t })),
   existsSync('webview/src/main.ts')
-    ? build({ ...common, platform: 'browser', format: 'iife', target: 'es2022', entryPoints: ['webview/src/main.ts'], outfile: 'dist/webview/main.js' })
+    ? build({ ...common, platform: 'browser', format: 'iife', target: 'es2022', entryPoints: ['webview/src/main.ts'], outfile: 'dist/webview/main.js', minify: true })
     : Promise.resolve(),
 ]);
 if (existsSync('webview/src/panel.css')) await cp('webview/src/panel.css', 'dist/webview/panel.css');

@@ -2,7 +2,7 @@
 import { describe, expect, it, vi } from 'vitest';
 import { budgetBar } from '../../webview/src/budget';
 import { renderBudgetBar, renderBudgetTable } from '../../webview/src/budgetView';
-import { renderSegmentTable, sortedOrder } from '../../webview/src/segmentTable';
+import { renderSegmentTable, sortedOrder, type SortState } from '../../webview/src/segmentTable';
 import { renderPassage, splitOf } from '../../webview/src/passageView';
 import { renderTimeline } from '../../webview/src/timeline';
 import { renderOverview } from '../../webview/src/overview';
@@ -63,7 +63,7 @@ describe('budget bar', () => {
 });
 
 describe('segment table', () => {
-  const render = (sort = { key: 'order' as const, dir: 'ascending' as const }, onSelect = vi.fn(), onSort = vi.fn()) =>
+  const render = (sort: SortState = { key: 'order', dir: 'ascending' }, onSelect = vi.fn(), onSort = vi.fn()) =>
     renderSegmentTable({ segments: SEGMENTS, selectedId: 'p2', sort, onSelect, onSort });
 
   it('lists every segment in prompt order with rank, tokens, share, fate icon + word and cut point', () => {
