@@ -118,6 +118,21 @@ export class Converter {
       return ev;
     }
     if (this.pending) {
+      if (this.pending.length === 1 && l.text.trimStart().startsWith('{')) {
+        // A second line that is a whole JSON object: the file is one object per line, not one document.
+        const r2 = spansOfLine(l.text, l.line);
+        if (!r2.issue) {
+          const first = this.pending[0]!;
+          this.pending = undefined;
+          this.seen = 1;
+          const ev: ConvertEvent[] = [];
+          const r1 = spansOfLine(first.text, first.line);
+          if (r1.issue) ev.push({ type: 'issue', issue: r1.issue });
+          this.offsets.set(l.line, l.offset ?? 0);
+          for (const sp of r2.spans) if (keep(sp)) this.spans.push(sp);
+          return ev;
+        }
+      }
       this.pending.push(l);
       return [];
     }
@@ -147,12 +162,25 @@ export class Converter {
       let doc: unknown;
       try {
         doc = JSON.parse(text);
-      } catch (e) {
-        return [{ type: 'issue', issue: { line: first.line, column: 1, code: 'bad-json', message: `bad JSON: ${(e as Error).message}` } }];
+      } catch {
+        doc = undefined;
       }
-      const lineOf = spanLinesOfDocument(text);
-      this.spans.push(...flattenTraces(doc, (a, b, c) => lineOf(a, b, c) + first.line - 1).filter(keep));
-      this.offsets.set(first.line, first.offset ?? 0);
+      if (doc !== undefined) {
+        const lineOf = spanLinesOfDocument(text);
+        this.spans.push(...flattenTraces(doc, (a, b, c) => lineOf(a, b, c) + first.line - 1).filter(keep));
+        this.offsets.set(first.line, first.offset ?? 0);
+      } else {
+        // Not one document after all: a one-object-per-line file whose first line is broken.
+        const lines = this.pending;
+        this.pending = undefined;
+        this.seen = 1;
+        for (const l of lines) {
+          const r = spansOfLine(l.text, l.line);
+          this.offsets.set(l.line, l.offset ?? 0);
+          if (r.issue) ev.push({ type: 'issue', issue: r.issue });
+          for (const sp of r.spans) if (keep(sp)) this.spans.push(sp);
+        }
+      }
     }
     const r = importSpans(this.spans, this.o);
     for (const issue of r.issues) ev.push({ type: 'issue', issue });

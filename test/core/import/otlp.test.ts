@@ -150,3 +150,12 @@ describe('OTLP edge cases', () => {
     expect(r.issues[0]!.message).toMatch(/not a JSON message list/);
   });
 });
+
+describe('OTLP: a broken first line', () => {
+  it('is reported and the other lines are still converted (not mistaken for a pretty-printed document)', () => {
+    const lines = text.split('\n');
+    const r = convertText(['{"resourceSpans": [ broken', lines[1], lines[0]].join('\n'), 'otlp');
+    expect(r.records.map((x) => x.line)).toEqual([2, 3]);
+    expect(r.issues[0]).toMatchObject({ line: 1, code: 'bad-json' });
+  });
+});
