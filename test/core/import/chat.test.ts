@@ -224,3 +224,27 @@ describe('other chat request spellings', () => {
     expect(rec.usage).toEqual({ prompt: 40, completion: 4 });
   });
 });
+
+describe('separator splitter and split layout through the importer', () => {
+  const content = 'Read these:\n\n---\nThe Lantern Loop runs every 12 minutes.\n\n---\nThe Copperway closes at midnight.\n\n---\n\nWhich line runs later?';
+  const line = JSON.stringify({ model: 'gpt-4o', messages: [{ role: 'user', content }] });
+
+  it('exact: passages start at their separator line and the message re-joins byte for byte', () => {
+    const r = convertText(line, 'chat', { splitter: { kind: 'separator' } });
+    const rec = r.records[0]!.record;
+    expect(rec.segments.map((s) => [s.kind, s.id, s.text])).toEqual([
+      ['query', 'm0.1', 'Read these:'],
+      ['passage', 'p1', '---\nThe Lantern Loop runs every 12 minutes.'],
+      ['passage', 'p2', '---\nThe Copperway closes at midnight.'],
+      ['query', 'm0.2', '---\n\nWhich line runs later?'],
+    ]);
+    expect(rec.segments.map((s) => s.text).join('\n\n')).toBe(content);
+    expect(r.issues).toEqual([]);
+  });
+
+  it('split: passage text only, and the change of the rendered message is reported', () => {
+    const r = convertText(line, 'chat', { splitter: { kind: 'separator' }, layout: 'split' });
+    expect(r.records[0]!.record.segments.map((s) => s.text)).toEqual(['Read these:', 'The Lantern Loop runs every 12 minutes.', 'The Copperway closes at midnight.', '---\n\nWhich line runs later?']);
+    expect(r.issues.map((i) => i.code)).toEqual(['import-reflowed']);
+  });
+});
