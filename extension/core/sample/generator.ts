@@ -284,7 +284,8 @@ function nextRecord(
   if (rng.chance(0.05)) {
     // A pasted itinerary: the kind of long query that squeezes everything else.
     const rows: string[] = [];
-    for (let i = rng.int(8, 40); i > 0; i--) {
+    // One in five is a whole pasted document, long enough to put a small window over budget.
+    for (let i = rng.chance(0.2) ? rng.int(60, 160) : rng.int(8, 40); i > 0; i--) {
       rows.push(`${fillTemplate('{weekday} {time} dep {station} → {station2} ({line})', rng)}`);
     }
     query += `\n${rows.join('\n')}`;

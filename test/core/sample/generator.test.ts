@@ -80,7 +80,7 @@ describe('sample log generator', () => {
     expect([...generateEntries({ seed: 5, turns: 2000, malformedRate: 0 })].some((e) => e.malformed)).toBe(false);
     // The rate itself is exercised statistically above (p = 0.02); at the default rate a useful sample
     // is ~10^5 lines, too slow for a unit test: docs/sample-workspace.md records a 1 GiB run
-    // (95,584 lines, 2 malformed; expected 1.9).
+    // (88,027 lines, 2 malformed; expected 1.8).
     expect(DEFAULT_MALFORMED_RATE).toBe(1 / 50_000);
   });
 
