@@ -136,6 +136,24 @@ describe('modifiers', () => {
     expect(fatesOf(pack(r, 1000, 'recent-first+cap:6+cut:sentence').record).p).toBe('clipped@17');
   });
 
+  it('cut:sentence moves a clip back to the last sentence end that fits', () => {
+    // Sentence 1 = "red" × 40 + "." = 40·4 − 1 + 1 = 160 characters; sentence 2 = "Blue" + "blue" × 39 + "."
+    // (capitalised: Unicode sentence rules (UAX #29, SB8) do not break before a lower-case word).
+    const s1 = words(40, WORD.p1) + '.';
+    const text = `${s1} Blue ${words(39, WORD.p2)}.`;
+    const q = 'owl';
+    const budget = refCount('cl100k_base', q) + 60;
+    // The clip keeps 60 tokens, which ends inside sentence 2 (reference counts), so the cut moves back to 160.
+    expect(s1.length).toBe(160);
+    expect(refCount('cl100k_base', s1)).toBeGreaterThanOrEqual(32);
+    expect(refCount('cl100k_base', s1)).toBeLessThan(60);
+    const r = record1({ segments: [{ id: 'q', kind: 'query', role: 'user', text: q }, { id: 'p', kind: 'passage', role: 'user', rank: 1, text }] });
+    const plain = fatesOf(pack(r, budget, 'recent-first+top:1').record).p!;
+    expect(plain).toMatch(/^clipped@/);
+    expect(Number(plain.split('@')[1])).toBeGreaterThan(160);
+    expect(fatesOf(pack(r, budget, 'recent-first+cut:sentence').record).p).toBe('clipped@160');
+  });
+
   it('modifier order does not matter; the canonical name has a fixed order', () => {
     expect(parsePlan('recent-first+order:edges+cap:200+dedupe:0.8').name).toBe('recent-first+dedupe:0.8+cap:200+order:edges');
   });
