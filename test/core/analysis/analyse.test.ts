@@ -1,6 +1,8 @@
+import Ajv from 'ajv';
 import { countTokens } from 'gpt-tokenizer/encoding/cl100k_base';
 import { describe, expect, it } from 'vitest';
 import { analyseTurn, DEFAULT_ANALYSIS_SETTINGS, summariseAnalyses } from '../../../extension/core/analysis/analyse';
+import { ANALYSIS_SUMMARY_SCHEMA, TURN_ANALYSIS_SCHEMA } from '../../../extension/core/analysis/schema';
 import { instructions, makeTurn, P1, P4, passage, query, referenceTurn } from '../../fixtures/analysis/turns';
 
 describe('analyseTurn on the reference turn (see test/fixtures/analysis/turns.ts)', () => {
@@ -222,5 +224,25 @@ describe('summariseAnalyses', () => {
   });
   it('an empty log has no means', () => {
     expect(summariseAnalyses([])).toMatchObject({ turns: 0, shareWithUnsupported: null, meanKnowledgeF1: null, meanKendallTau: null });
+  });
+});
+
+describe('JSON Schema of the output (extension/core/analysis/schema.ts)', () => {
+  const ajv = new Ajv({ allErrors: true, strict: true });
+  const validTurn = ajv.compile(TURN_ANALYSIS_SCHEMA);
+  const validSummary = ajv.compile(ANALYSIS_SUMMARY_SCHEMA);
+  const { record, ledger } = referenceTurn();
+  const a = analyseTurn(record, ledger);
+
+  it('accepts real output and its summary', () => {
+    expect(validTurn(a), ajv.errorsText(validTurn.errors)).toBe(true);
+    expect(validSummary(summariseAnalyses([a])), ajv.errorsText(validSummary.errors)).toBe(true);
+    expect(validSummary(summariseAnalyses([])), ajv.errorsText(validSummary.errors)).toBe(true);
+  });
+  it('rejects an unknown field, a missing field and a wrong label', () => {
+    expect(validTurn({ ...a, extra: 1 })).toBe(false);
+    const { notes: _notes, ...withoutNotes } = a;
+    expect(validTurn(withoutNotes)).toBe(false);
+    expect(validTurn({ ...a, sentences: [{ ...a.sentences[0]!, label: 'maybe' }] })).toBe(false);
   });
 });
