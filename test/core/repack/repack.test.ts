@@ -3,7 +3,7 @@ import { Accountant } from '../../../extension/core/tokens/accountant';
 import { readLogForRepack, repackLines, RepackCancelled } from '../../../extension/core/repack/repack';
 import { readLogText } from '../../../extension/core/log/reader';
 import { buildLedger } from '../../../extension/core/audit/ledger';
-import { compareLedgers } from '../../../extension/core/repack/compare';
+import { compareLedgers, compareLogs } from '../../../extension/core/repack/compare';
 import { repackRecord } from '../../../extension/core/repack/pack';
 import { generateLog } from '../../../extension/core/sample/generator';
 import type { TurnComparison } from '../../../extension/core/repack/compare';
@@ -138,5 +138,28 @@ describe('compareLedgers', () => {
     expect(c.lost).toEqual(['p2', 'p3']);
     expect(c.replySupport).toEqual({ a: 1, b: 0 });
     expect(c.worse).toBe(true);
+  });
+});
+
+describe('compareLogs', () => {
+  it('pairs records by (conversation, turn) in any order, counts malformed lines and unmatched records', async () => {
+    const t3 = { ...record1(), evidence: ['p2'] };
+    const t4 = { ...record1(), turn: 4 };
+    const t5 = { ...record1(), turn: 5 };
+    const a = readLogText([t3, t4, t5].map((r) => JSON.stringify(r)).join('\n'));
+    const repacked = [t4, t3].map((r) => repackRecord(r, { budget: 150, plan: 'evidence-first' }, acct).record);
+    const b = readLogText([JSON.stringify(repacked[0]), '{oops', JSON.stringify(repacked[1])].join('\n'));
+    const r = await compareLogs([...a.records], [...b.records, ...b.issues.map((issue) => ({ issue }))], {}, { accountant: acct });
+    expect(r.totals.turns).toBe(2);
+    expect(r.unmatched).toEqual({ a: 1, b: 0 });
+    expect(b.issues).toHaveLength(1);
+    expect(r.malformed.b).toBe(1);
+    // a packs under each record's own window of 1000 (everything fits, 235 tokens); b is evidence-first at 150 (125 tokens).
+    const turn3 = r.turns.find((t) => t.turn === 3)!;
+    expect([turn3.a.used, turn3.b.used]).toEqual([235, 125]);
+    expect(turn3.lost).toEqual(['p3']);
+    expect(turn3.historyDropped.sort()).toEqual([1, 2]);
+    expect(turn3.evidence).toMatchObject({ retentionA: 1, retentionB: 1 });
+    expect(r.totals).toMatchObject({ tokensA: 470, tokensB: 250, passagesLost: 2, historyTurnsDropped: 4 });
   });
 });
