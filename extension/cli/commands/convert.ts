@@ -116,16 +116,23 @@ export async function runConvert(input: string, o: ConvertCliOptions, err: (s: s
   const out = atomicWriter(o.out);
   let records = 0;
   let issues = 0;
+  // Records are batched into ~1 MiB writes: one awaited write per record leaves the loop idle on I/O.
+  let batch = '';
   try {
     for await (const e of convertLines(readLogLines(chunks), from, opts)) {
       if (e.type === 'record') {
-        await out.write(JSON.stringify(e.record.record) + '\n');
+        batch += JSON.stringify(e.record.record) + '\n';
         records++;
+        if (batch.length >= 1 << 20) {
+          await out.write(batch);
+          batch = '';
+        }
       } else {
         issues++;
         if (!o.quiet) err(formatIssue(input, e.issue) + '\n');
       }
     }
+    if (batch) await out.write(batch);
     await out.commit();
   } catch (e) {
     await out.abort();
