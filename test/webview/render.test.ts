@@ -72,7 +72,7 @@ describe('segment table', () => {
     expect(rows.map((r) => r.getAttribute('data-id'))).toEqual(['sys', 'h1', 'p1', 'p2', 'p3', 'q']);
     const cells = (id: string): string[] => Array.from(table.querySelectorAll(`tr[data-id="${id}"] td`)).map((c) => c.textContent!.trim());
     // p2: 412 of 845 tokens kept; 412 / 7,168 = 5.75% → 5.7%
-    expect(cells('p2')).toEqual(['4', 'p2', 'passage', 'system', '2', '9.87', '412 / 845', '5.7%', '✂ clipped', 'token 412 · char 31']);
+    expect(cells('p2')).toEqual(['4', 'p2', 'passage', 'system', '2', '9.87', '412 / 845', '5.7%', '✂ clipped', '412 · 31']);
     expect(cells('p3')).toEqual(['5', 'p3', 'passage', 'system', '3', '7.50', '777', '0.0%', '✕ dropped', '–']);
     expect(cells('p1').slice(7, 9)).toEqual(['37.6%', '✓ kept']); // 2,694 / 7,168 = 37.58%
     // the icon is decoration; the word carries the meaning

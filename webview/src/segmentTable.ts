@@ -24,7 +24,7 @@ const COLUMNS: ReadonlyArray<{ key: SortKey; label: string; num?: boolean }> = [
   { key: 'tokens', label: 'tokens', num: true },
   { key: 'share', label: 'share of budget', num: true },
   { key: 'fate', label: 'fate' },
-  { key: 'cut', label: 'cut point' },
+  { key: 'cut', label: 'cut (token · char)', num: true },
 ];
 
 const FATE_ORDER = { kept: 0, clipped: 1, dropped: 2 } as const;
@@ -102,7 +102,7 @@ export function renderSegmentTable(o: SegmentTableOptions): HTMLTableElement {
       h('td', { class: 'num' }, seg.fate === 'clipped' ? `${int(seg.keptTokens)} / ${int(seg.tokens)}` : int(seg.tokens)),
       shareCell(seg.share),
       h('td', {}, fateBadge(seg.fate, seg.planFate)),
-      h('td', { class: 'cut' }, seg.cut ? `token ${int(seg.cut.token)} · char ${int(seg.cut.char)}` : '–'),
+      h('td', { class: 'cut num', title: seg.cut ? `cut after token ${int(seg.cut.token)}, at character ${int(seg.cut.char)}` : undefined }, seg.cut ? `${int(seg.cut.token)} · ${int(seg.cut.char)}` : '–'),
     );
     tr.addEventListener('click', () => o.onSelect(seg.id));
     body.appendChild(tr);

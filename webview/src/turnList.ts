@@ -30,6 +30,9 @@ export class TurnList {
   private active = 0;
   private selectedLine: number | undefined;
   private frame = 0;
+  /** Bumped whenever rows change (pages, total); with the visible range it keys what is on screen. */
+  private version = 0;
+  private shownKey = '';
 
   constructor(private readonly o: TurnListOptions) {
     this.spacer = h('div', { class: 'turn-list-spacer' });
@@ -40,6 +43,7 @@ export class TurnList {
 
   setTotal(total: number): void {
     this.total = total;
+    this.version++;
     this.pages.clear();
     this.pending.clear();
     this.active = 0;
@@ -54,6 +58,7 @@ export class TurnList {
     const p = Math.floor(offset / PAGE_SIZE);
     this.pending.delete(p);
     this.pages.set(p, rows);
+    this.version++;
     this.evict(p);
     this.render();
   }
@@ -100,6 +105,18 @@ export class TurnList {
 
   render(): void {
     const [first, end] = this.visibleRange();
+    // Same rows on screen (only the active/selected row moved): update attributes, keep the nodes.
+    const key = `${first}:${end}:${this.version}`;
+    if (key === this.shownKey) {
+      for (const el of Array.from(this.spacer.children) as HTMLElement[]) {
+        const i = Number(el.id.slice('turn-opt-'.length));
+        el.classList.toggle('active', i === this.active);
+        if (el.dataset.line) el.setAttribute('aria-selected', Number(el.dataset.line) === this.selectedLine ? 'true' : 'false');
+      }
+      this.element.setAttribute('aria-activedescendant', `turn-opt-${this.active}`);
+      return;
+    }
+    this.shownKey = key;
     const rows: HTMLElement[] = [];
     for (let i = first; i < end; i++) {
       const p = Math.floor(i / PAGE_SIZE);

@@ -166,6 +166,25 @@ async function scaleCheck(browser: Browser, report: string[]): Promise<void> {
   await s.page.context().close();
 }
 
+/** First paint over several fresh page loads: min and median (the machine is shared, so the min is the cleanest). */
+async function firstPaintRuns(browser: Browser, path: string, runs: number, report: string[]): Promise<void> {
+  const host = await auditedHost(path);
+  const total: number[] = [];
+  const render: number[] = [];
+  for (let i = 0; i < runs; i++) {
+    const s = await open(browser, host, 'dark', 820, interestingLine(host));
+    await s.page.waitForFunction(() => performance.getEntriesByName('spillway:first-paint').length > 0, undefined, { timeout: 15_000 });
+    total.push(s.firstPaintMs[0] ?? NaN);
+    render.push(await s.page.evaluate(() => performance.getEntriesByName('spillway:first-paint')[0]!.startTime - (window as unknown as { __turnAt: number }).__turnAt));
+    await s.page.context().close();
+  }
+  const stat = (xs: number[]): string => {
+    const v = [...xs].sort((a, b) => a - b);
+    return `min ${v[0]!.toFixed(1)} ms, median ${v[Math.floor(v.length / 2)]!.toFixed(1)} ms`;
+  };
+  report.push(`first paint on ${basename(path)} over ${runs} loads: script start → first turn view painted ${stat(total)}; of which turn reply → painted ${stat(render)}`);
+}
+
 async function main(): Promise<void> {
   mkdirSync(OUT, { recursive: true });
   let logs = process.argv.slice(2);
@@ -186,6 +205,11 @@ async function main(): Promise<void> {
   });
   const report: string[] = [];
   try {
+    if (process.env.FIRST_PAINT_RUNS) {
+      for (const log of logs) await firstPaintRuns(browser, log, Number(process.env.FIRST_PAINT_RUNS), report);
+      console.log(report.join('\n'));
+      return;
+    }
     for (const log of logs) {
       const name = basename(log).replace(/\.jsonl$/, '').replace(/^spillway-harness-/, '');
       await shootLog(browser, log, name, ['dark', 'light'], report);
