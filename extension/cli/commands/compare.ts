@@ -9,14 +9,16 @@ import { pricesFrom, progressReporter, withInterrupt } from './repack';
 const pct = (x: number | null | undefined): string => (x === null || x === undefined ? '—' : `${(100 * x).toFixed(1)}%`);
 const money = (x: number | null | undefined): string => (x === null || x === undefined ? '—' : x.toFixed(4));
 
+const ids = (xs: string[]): string => (xs.length === 0 ? '—' : xs.length <= 3 ? xs.join(' ') : `${xs.slice(0, 3).join(' ')} +${xs.length - 3}`);
+
 function turnRow(c: TurnComparison): string[] {
   return [
     String(c.line),
     `${c.conversation}#${c.turn}`,
     c.evidence ? `${pct(c.evidence.retentionA)} → ${pct(c.evidence.retentionB)}` : '—',
     c.replySupport ? `${pct(c.replySupport.a)} → ${pct(c.replySupport.b)}` : '—',
-    c.lost.join(' ') || '—',
-    c.gained.join(' ') || '—',
+    ids(c.lost),
+    ids(c.gained),
     String(c.historyDropped.length),
     `${c.a.used} → ${c.b.used}`,
   ];
