@@ -155,24 +155,31 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
 
   // --- per passage ------------------------------------------------------------------------
   const sent = byPrompt.filter((j) => j.seg.kind === 'passage' && j.fate !== 'dropped');
+  const sentPosition = new Map<Joined, number>(sent.map((j, i) => [j, i + 1]));
+  // Sentences each passage carries (as best kept match) or lost (as best spilled match), by id.
+  const supportsOf = new Map<string, number>();
+  const lostOf = new Map<string, number>();
+  for (const x of sentences) {
+    if (x.label === 'supported' && x.kept) supportsOf.set(x.kept.id, (supportsOf.get(x.kept.id) ?? 0) + 1);
+    if (x.label === 'lost' && x.spilled) lostOf.set(x.spilled.id, (lostOf.get(x.spilled.id) ?? 0) + 1);
+  }
   const passageRows: PassageAnalysis[] = passages.map((j, i) => {
     const date = typeof j.seg.date === 'string' ? j.seg.date : null;
     const ageDays = date !== null && nowValid ? ageInDays(date, now!) : null;
     if (date !== null && nowValid && ageDays === null) notes.push(`passage "${j.seg.id}" has a date that is not ISO 8601: ${JSON.stringify(date)}`);
-    const sentIndex = sent.indexOf(j);
     return {
       id: j.seg.id,
       rank: Number.isFinite(rankOf(j.seg)) ? rankOf(j.seg) : null,
       fate: j.fate,
       keptTokens: j.keptTokens,
-      position: sentIndex < 0 ? null : sentIndex + 1,
+      position: sentPosition.get(j) ?? null,
       f1: hasReply ? f1Against(j.seg.text) : 0,
       keptF1: hasReply && j.keptText !== '' ? f1Against(j.keptText) : 0,
       bm25Query: queryScores ? queryScoreList[i]! : null,
       bm25QueryRank: queryScores ? queryRanks[i]! : null,
       bm25Reply: replyScores ? replyScores.get(String(i))! : null,
-      supports: sentences.filter((x) => x.label === 'supported' && x.kept?.id === j.seg.id).length,
-      lostSupports: sentences.filter((x) => x.label === 'lost' && x.spilled?.id === j.seg.id).length,
+      supports: supportsOf.get(j.seg.id) ?? 0,
+      lostSupports: lostOf.get(j.seg.id) ?? 0,
       date,
       ageDays,
       stale: isStale(ageDays, s.staleAfterDays),
@@ -199,7 +206,7 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
     knowledgeF1 = evidence.f1;
     knowledgeF1Basis = 'evidence';
   } else if (hasReply && passageRows.length > 0) {
-    knowledgeF1 = Math.max(...passageRows.map((p) => p.f1));
+    knowledgeF1 = passageRows.reduce((best, p) => Math.max(best, p.f1), 0);
     knowledgeF1Basis = 'best-passage';
   }
 
