@@ -58,8 +58,8 @@ function first<T>(...vals: Array<T | undefined>): T | undefined {
 }
 
 /** 1-based column of the value at `path` in the line, or 1. Only used on the issue path. */
-export function columnAt(text: string, path: Array<string | number>): number {
-  const root = parseTree(text);
+export function columnAt(text: string, path: Array<string | number>, tree?: ReturnType<typeof parseTree>): number {
+  const root = tree ?? parseTree(text);
   if (!root) return 1;
   for (let n = path.length; n >= 0; n--) {
     const node = findNodeAtLocation(root, path.slice(0, n));
@@ -276,11 +276,13 @@ export function importChatLine(text: string, line: number, o: ResolvedImportOpti
   record.import = { from: 'chat', line };
   if (Object.keys(extra).length) record.chat = extra;
 
+  let tree: ReturnType<typeof parseTree> | undefined; // parsed once, only when a note needs a column
   for (const n of notes) {
     const m = /^message (\d+)/.exec(n.message);
     const at = m ? Number(m[1]) - shift : undefined;
     const path = at === undefined ? undefined : at < 0 ? [...msgPath.slice(0, -1), sysKey!] : [...msgPath, at];
-    issues.push({ line, column: path ? columnAt(text, path) : 1, code: n.code, message: n.message });
+    if (path && !tree) tree = parseTree(text);
+    issues.push({ line, column: path ? columnAt(text, path, tree) : 1, code: n.code, message: n.message });
   }
   const explain: RecordExplain = {
     line,
