@@ -10,3 +10,6 @@ export function skip(reason: string): never {
 }
 
 export const fmt = (n: number) => n.toLocaleString('en-US');
+
+/** A CSS string literal for an attribute selector; segment ids can be hostile text too. */
+export const cssString = (s: string) => `"${s.replace(/\\/g, '\\\\').replace(/"/g, '\\"').replace(/\n/g, '\\a ')}"`;

@@ -6,8 +6,7 @@ import { join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import type { AuditReport } from '../../extension/core/audit/types';
 import type { Server } from './server';
-import { writeSettings } from './server';
-import { sleep } from './workbench';
+import { runCommand, sleep } from './workbench';
 
 const run = promisify(execFile);
 
@@ -15,6 +14,8 @@ export interface Command {
   id: string;
   /** As the palette shows it: "Category: Title". */
   palette: string;
+  /** Hidden from the palette by `menus.commandPalette` `"when": "false"`. */
+  hidden: boolean;
 }
 
 export interface WebRequest {
@@ -47,11 +48,16 @@ export interface Ctx {
 /** Commands of the INSTALLED extension's manifest (what the workbench sees). */
 export function contributedCommands(extensionDir: string): Command[] {
   const pkg = JSON.parse(readFileSync(join(extensionDir, 'package.json'), 'utf8')) as {
-    contributes?: { commands?: Array<{ command: string; title: string; category?: string }> };
+    contributes?: {
+      commands?: Array<{ command: string; title: string; category?: string }>;
+      menus?: { commandPalette?: Array<{ command: string; when?: string }> };
+    };
   };
+  const hidden = new Set((pkg.contributes?.menus?.commandPalette ?? []).filter((m) => m.when === 'false').map((m) => m.command));
   return (pkg.contributes?.commands ?? []).map((c) => ({
     id: c.command,
     palette: c.category ? `${c.category}: ${c.title}` : c.title,
+    hidden: hidden.has(c.command),
   }));
 }
 
@@ -80,15 +86,26 @@ export function makeAudit(repo: string) {
   };
 }
 
-export async function applyTheme(server: Server, page: Page, theme: string): Promise<void> {
-  await writeSettings(server.settingsFile, { 'workbench.colorTheme': theme });
-  // The workbench watches settings.json; wait until the theme class flips.
+/**
+ * Switch the colour theme the way a user does ("Preferences: Color Theme", pick by name) and wait
+ * until the workbench shows it (its root element carries `vs` or `vs-dark`).
+ */
+export async function applyTheme(_server: Server, page: Page, theme: string): Promise<void> {
   const want = theme.includes('Light') ? 'vs' : 'vs-dark';
+  const isOn = async () => ((await page.locator('.monaco-workbench').getAttribute('class')) ?? '').split(/\s+/).includes(want);
+  if (await isOn()) return;
+  await runCommand(page, 'Preferences: Color Theme', { timeout: 20_000 });
+  // The setting's value is "Default Light Modern"; the picker labels it "Light Modern".
+  const label = theme.replace(/^Default /, '');
+  const box = page.locator('.quick-input-widget input.input').first();
+  await box.fill(label);
+  const row = page.locator('.quick-input-widget .quick-input-list .monaco-list-row').filter({ has: page.locator('.label-name', { hasText: new RegExp(`^\\s*${label}\\s*$`) }) }).first();
+  await row.waitFor({ timeout: 10_000 });
+  await row.click();
   const deadline = Date.now() + 15_000;
-  while (Date.now() < deadline) {
-    const cls = (await page.locator('.monaco-workbench').getAttribute('class')) ?? '';
-    if (cls.split(/\s+/).includes(want)) break;
+  while (!(await isOn())) {
+    if (Date.now() > deadline) throw new Error(`colour theme did not switch to ${theme}`);
     await sleep(250);
   }
-  await sleep(800); // webviews receive the new theme variables asynchronously
+  await sleep(1000); // webviews receive the new theme variables asynchronously
 }

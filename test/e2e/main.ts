@@ -67,8 +67,19 @@ async function packageVsix(): Promise<string> {
   if (process.env.SPILLWAY_E2E_VSIX) return resolve(process.env.SPILLWAY_E2E_VSIX);
   const logFile = join(scratch, 'package.log');
   await writeFile(logFile, '');
-  const code = await runToEnd('npm', ['run', 'package'], logFile, { cwd: repo, timeoutMs: 300_000 });
-  if (code !== 0 || !existsSync(vsix)) throw new Error(`npm run package failed (exit ${code}):\n${(await readFile(logFile, 'utf8')).slice(-3000)}`);
+  // The project's build, then vsce offline. Relative README links stay as they are (no repository
+  // URL is published), which `npm run package` would otherwise refuse.
+  let code = await runToEnd('npm', ['run', 'build'], logFile, { cwd: repo, timeoutMs: 300_000 });
+  if (code === 0) {
+    await rm(vsix, { force: true });
+    code = await runToEnd(
+      join(repo, 'node_modules/.bin/vsce'),
+      ['package', '--no-dependencies', '--allow-missing-repository', '--no-rewrite-relative-links', '-o', vsix],
+      logFile,
+      { cwd: repo, timeoutMs: 300_000 },
+    );
+  }
+  if (code !== 0 || !existsSync(vsix)) throw new Error(`packaging failed (exit ${code}):\n${(await readFile(logFile, 'utf8')).slice(-3000)}`);
   return vsix;
 }
 

@@ -61,13 +61,25 @@ function exactText(s: string): RegExp {
   return new RegExp(`^\\s*${s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}\\s*$`);
 }
 
-/** Open a workspace file through Quick Open, as a user would, and wait for its editor tab. */
-export async function openFile(page: Page, relPath: string): Promise<void> {
+/**
+ * Open a workspace file through Quick Open, as a user would, and wait for its editor. The first
+ * file search of a session can be slow (the search service starts on demand), so it retries.
+ */
+export async function openFile(page: Page, relPath: string, timeout = 60_000): Promise<void> {
   const name = relPath.split('/').pop()!;
-  await openPalette(page, relPath);
-  const row = rows(page).filter({ hasText: name }).first();
-  await row.waitFor({ state: 'visible', timeout: 20_000 });
-  await page.keyboard.press('Enter');
+  const deadline = Date.now() + timeout;
+  for (;;) {
+    await openPalette(page, relPath);
+    const row = rows(page).filter({ hasText: name }).first();
+    try {
+      await row.waitFor({ state: 'visible', timeout: 10_000 });
+      await page.keyboard.press('Enter');
+      break;
+    } catch (e) {
+      await page.keyboard.press('Escape');
+      if (Date.now() > deadline) throw new Error(`Quick Open did not find ${relPath} within ${timeout / 1000} s: ${String(e)}`);
+    }
+  }
   await page.locator(`.tabs-container .tab[aria-label^="${name}"]`).first().waitFor({ timeout: 20_000 });
   await page.locator('.editor-group-container.active .monaco-editor .view-lines').first().waitFor({ timeout: 20_000 });
 }
@@ -134,4 +146,31 @@ export async function codeLenses(page: Page): Promise<Array<{ line: number; text
 /** Scroll the active editor so that `line` is at the top (keyboard: Go to Line, then reveal at top). */
 export async function scrollEditorTo(page: Page, line: number): Promise<void> {
   await goToLine(page, line);
+}
+
+/** Hide the bottom panel (Problems, Output…) so screenshots show the editor and the sidebar. */
+export async function hideBottomPanel(page: Page): Promise<void> {
+  if (await page.locator('.part.panel.bottom').isVisible().catch(() => false)) {
+    await runCommand(page, 'View: Hide Panel', { timeout: 10_000, mustExist: false });
+    await sleep(300);
+  }
+}
+
+/** Drag the sash right of the primary side bar so it is `width` pixels wide. */
+export async function setSidebarWidth(page: Page, width: number): Promise<void> {
+  const bar = await page.locator('.part.sidebar').boundingBox();
+  if (!bar) return;
+  const edge = bar.x + bar.width;
+  const sashes = page.locator('.monaco-sash.vertical');
+  for (let i = 0; i < (await sashes.count()); i++) {
+    const b = await sashes.nth(i).boundingBox();
+    if (!b || Math.abs(b.x + b.width / 2 - edge) > 6 || b.height < bar.height / 2) continue;
+    const y = b.y + b.height / 2;
+    await page.mouse.move(b.x + b.width / 2, y);
+    await page.mouse.down();
+    await page.mouse.move(bar.x + width, y, { steps: 8 });
+    await page.mouse.up();
+    await sleep(400);
+    return;
+  }
 }

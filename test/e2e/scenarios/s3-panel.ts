@@ -6,10 +6,10 @@
 import type { Frame } from 'playwright-core';
 import type { Ctx } from '../context';
 import type { Ledger } from '../../../extension/core/audit/types';
-import { assert, fmt, skip } from '../assert';
-import { codeLenses, goToLine, openFile, sleep } from '../workbench';
+import { assert, cssString, fmt, skip } from '../assert';
+import { codeLenses, goToLine, hideBottomPanel, openFile, setSidebarWidth, sleep } from '../workbench';
 import { SAMPLE_LOG } from './smoke';
-import { recordAt, showPanel, waitPanelTurn } from './common';
+import { panelFrame, recordAt, showPanel, waitPanelTurn } from './common';
 
 /** The turn the scenario selects: one with a clipped passage (so there is a cut to show). */
 export function turnWithCut(records: Ledger[]): Ledger | undefined {
@@ -45,7 +45,7 @@ async function checkTurn(ctx: Ctx, frame: Frame, r: Ledger): Promise<void> {
   const seg = r.segments.find((s) => s.kind === 'passage' && s.fate === 'clipped' && s.cut)!;
   const text = rec.segments.find((s) => s.id === seg.id)!.text;
   await rows.filter({ has: frame.locator('td.seg-id', { hasText: seg.id }) }).first().click();
-  const passage = frame.locator(`.passage[data-segment="${seg.id}"]`);
+  const passage = frame.locator(`.passage[data-segment=${cssString(seg.id)}]`);
   await passage.waitFor({ state: 'visible', timeout: 10_000 });
   const kept = (await passage.locator('[data-part="kept"]').textContent()) ?? '';
   const spilled = (await passage.locator('[data-part="spilled"]').textContent()) ?? '';
@@ -81,10 +81,22 @@ export const panel = {
     }
     SELECTED.line = r.line;
     await checkTurn(ctx, frame, r);
-    await ctx.setTheme('Default Dark Modern');
-    await ctx.screenshot('s3-panel-dark');
-    await ctx.setTheme('Default Light Modern');
-    await ctx.screenshot('s3-panel-light');
+
+    // Screenshots: a wide side bar, no bottom panel; the turn's top (bar + table), then the cut.
+    await hideBottomPanel(ctx.page);
+    await setSidebarWidth(ctx.page, 820);
+    const seg = r.segments.find((s) => s.kind === 'passage' && s.fate === 'clipped' && s.cut)!;
+    for (const [theme, name] of [['Default Dark Modern', 'dark'], ['Default Light Modern', 'light']] as const) {
+      await ctx.setTheme(theme);
+      frame = await panelFrame(ctx);
+      await frame.locator('svg.budget-bar').scrollIntoViewIfNeeded();
+      await frame.evaluate(() => window.scrollTo(0, 0));
+      await sleep(300);
+      await ctx.screenshot(`s3-panel-${name}`);
+      await frame.locator(`.passage[data-segment=${cssString(seg.id)}] [role="separator"]`).evaluate((el) => el.scrollIntoView({ block: 'center' }));
+      await sleep(300);
+      await ctx.screenshot(`s3-passage-cut-${name}`);
+    }
     await ctx.setTheme('Default Dark Modern');
   },
 };

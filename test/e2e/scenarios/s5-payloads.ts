@@ -5,7 +5,7 @@
  * request leaves for anything but our own code-server.
  */
 import type { Ctx } from '../context';
-import { assert, skip } from '../assert';
+import { assert, cssString, skip } from '../assert';
 import { goToLine, openFile, sleep } from '../workbench';
 import { recordAt, showPanel, waitPanelTurn } from './common';
 import { existsSync } from 'node:fs';
@@ -38,8 +38,8 @@ export const payloads = {
         const rec = await recordAt(ctx, PAYLOAD_LOG, r.line);
         for (const seg of rec.segments) {
           if (!/[<>]/.test(seg.text)) continue;
-          await frame.locator(`[role="grid"] tbody tr[data-id="${seg.id}"]`).click();
-          const box = frame.locator(`.passage[data-segment="${seg.id}"] .passage-text`);
+          await frame.locator(`[role="grid"] tbody tr[data-id=${cssString(seg.id)}]`).click();
+          const box = frame.locator(`.passage[data-segment=${cssString(seg.id)}] .passage-text`);
           await box.waitFor({ state: 'visible', timeout: 10_000 });
           const shown = (await box.locator('[data-part="kept"]').textContent() ?? '') + (await box.locator('[data-part="spilled"]').textContent() ?? '');
           assert(shown === seg.text, `${seg.id} on line ${r.line} is not shown as its literal text: "${shown.slice(0, 120)}"`);
