@@ -2,7 +2,7 @@
 import type { Command } from 'commander';
 import { auditStream } from '../../core/audit/audit';
 import { renderHtmlReport } from '../../core/audit/html';
-import { formatSummary, formatTable, TEXT_COLUMNS, textRow } from '../../core/audit/text';
+import { formatAnalysisSummary, formatSummary, formatTable, TEXT_COLUMNS, textRow } from '../../core/audit/text';
 import type { AuditOptions, AuditReport, Ledger } from '../../core/audit/types';
 import { isEncodingName, ENCODINGS } from '../../core/tokens/encoder';
 import { parsePlan, PlanError } from '../../core/pack/plans';
@@ -20,6 +20,8 @@ export interface AuditCliOptions {
   failOnMalformed?: boolean;
   maxLineBytes?: string;
   quiet?: boolean;
+  /** commander's --no-analysis */
+  analysis?: boolean;
 }
 
 /** Turns CLI strings into validated audit options (exit 2 on bad values). */
@@ -53,6 +55,7 @@ export async function runAudit(file: string, o: AuditCliOptions): Promise<number
   try {
     let report: AuditReport;
     const read = o.maxLineBytes ? { maxLineBytes: parseTokens(o.maxLineBytes, '--max-line-bytes') } : undefined;
+    const analysis = o.analysis !== false;
     const onProgress = progress ? (done: number, bytes?: number) => bytes !== undefined && process.stderr.write(`\r${done} records, ${((100 * bytes) / size).toFixed(1)}%`) : undefined;
     if (o.format === 'json') {
       // Streamed: one record at a time, so a 1 GB log does not build a 1 GB report in memory.
@@ -61,21 +64,24 @@ export async function runAudit(file: string, o: AuditCliOptions): Promise<number
       report = await auditStream(chunks, { ...opts, file }, {
         read,
         onProgress,
+        analysis,
         onLedger: (l: Ledger) => {
           out.push((first ? '' : ',\n') + JSON.stringify(l));
           first = false;
         },
       });
-      await out.write(`\n],"errors":${JSON.stringify(report.errors)},"summary":${JSON.stringify(report.summary)}}\n`);
+      const tail = report.analysisSummary ? `,"analysisSummary":${JSON.stringify(report.analysisSummary)}` : '';
+      await out.write(`\n],"errors":${JSON.stringify(report.errors)},"summary":${JSON.stringify(report.summary)}${tail}}\n`);
     } else if (o.format === 'text') {
       const rows: string[][] = [];
-      report = await auditStream(chunks, { ...opts, file }, { read, onProgress, onLedger: (l) => rows.push(textRow(l)) });
+      report = await auditStream(chunks, { ...opts, file }, { read, onProgress, analysis, onLedger: (l) => rows.push(textRow(l)) });
       const shown = rows.length > TEXT_STREAM_AFTER ? rows.slice(0, TEXT_STREAM_AFTER) : rows;
       await out.write(formatTable(shown, TEXT_COLUMNS) + '\n');
       if (rows.length > shown.length) await out.write(`… ${rows.length - shown.length} more turns (use --format json for all of them)\n`);
       await out.write('\n' + formatSummary(report.summary, report.errors) + '\n');
+      if (report.analysisSummary) await out.write(formatAnalysisSummary(report.analysisSummary) + '\n');
     } else {
-      report = await auditStream(chunks, { ...opts, file }, { read, onProgress });
+      report = await auditStream(chunks, { ...opts, file }, { read, onProgress, analysis });
       await out.write(renderHtmlReport(report));
     }
     if (progress) process.stderr.write('\n');
@@ -108,5 +114,6 @@ export function registerAudit(program: Command, setExit: (code: number) => void)
     .option('--fail-on-malformed', 'exit 1 if any line is malformed')
     .option('--max-line-bytes <n>', 'skip (and report) lines longer than this')
     .option('--quiet', 'no progress or notices on stderr')
+    .option('--no-analysis', 'skip the grounding analysis (reply support, BM25, near-duplicates, position, staleness)')
     .action(async (log: string, o: AuditCliOptions) => setExit(await runAudit(log, o)));
 }

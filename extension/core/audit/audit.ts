@@ -6,6 +6,10 @@ import type { LogIssue } from '../log/types';
 import { readLog, readLogText, type ReadItem, type ReadOptions } from '../log/reader';
 import { Accountant } from '../tokens/accountant';
 import { auditRecord, LedgerError } from './ledger';
+import { analyseTurn } from '../analysis/analyse';
+import { loadShingleHasher } from '../analysis/shingles';
+import { AnalysisAccumulator } from '../analysis/accumulate';
+import type { AnalysisSettings } from '../analysis/types';
 import type { AuditOptions, AuditReport, AuditSummary, Ledger } from './types';
 
 export interface AuditContext {
@@ -19,6 +23,8 @@ export interface AuditContext {
   read?: ReadOptions;
   /** Keep at most this many issues in the report (the count in the summary stays exact). */
   maxIssues?: number;
+  /** Run the grounding analysis on every record (settings override the documented defaults). */
+  analysis?: Partial<AnalysisSettings> | boolean;
 }
 
 export class AuditCancelled extends Error {
@@ -66,6 +72,9 @@ export async function auditItems(items: AsyncIterable<ReadItem> | Iterable<ReadI
   const maxIssues = ctx.maxIssues ?? 10_000;
   const summary = new SummaryBuilder();
   const every = ctx.progressEvery ?? 500;
+  const analysisSettings = ctx.analysis === true ? {} : ctx.analysis || undefined;
+  const analyses = analysisSettings ? new AnalysisAccumulator() : undefined;
+  if (analysisSettings) await loadShingleHasher();
   let done = 0;
   for await (const item of items) {
     if (ctx.signal?.aborted) throw new AuditCancelled();
@@ -84,6 +93,10 @@ export async function auditItems(items: AsyncIterable<ReadItem> | Iterable<ReadI
       continue;
     }
     summary.add(ledger);
+    if (analyses && analysisSettings) {
+      ledger.analysis = analyseTurn(item.record, ledger, analysisSettings);
+      analyses.add(ledger.analysis);
+    }
     if (ctx.onLedger) ctx.onLedger(ledger);
     else records.push(ledger);
     if (++done % every === 0) {
@@ -93,7 +106,9 @@ export async function auditItems(items: AsyncIterable<ReadItem> | Iterable<ReadI
     }
   }
   ctx.onProgress?.(done);
-  return { schema: 'spillway.audit/1', file: opts.file ?? '', options: pickOptions(opts), records, errors, summary: summary.result() };
+  const report: AuditReport = { schema: 'spillway.audit/1', file: opts.file ?? '', options: pickOptions(opts), records, errors, summary: summary.result() };
+  if (analyses) report.analysisSummary = analyses.result();
+  return report;
 }
 
 function pickOptions(o: AuditOptions): AuditOptions {

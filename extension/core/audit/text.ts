@@ -1,6 +1,7 @@
 /** Plain-text rendering of an audit: a per-turn table and a summary. */
 import type { LogIssue } from '../log/types';
 import type { AuditSummary, Ledger } from './types';
+import type { AnalysisSummary } from '../analysis/types';
 
 const n = (x: number): string => x.toLocaleString('en-US');
 
@@ -46,4 +47,19 @@ export function formatSummary(s: AuditSummary, errors: readonly LogIssue[]): str
   for (const e of errors.slice(0, 50)) lines.push(`  line ${e.line}, column ${e.column}: ${e.message} [${e.code}]`);
   if (errors.length > 50) lines.push(`  … ${errors.length - 50} more`);
   return lines.join('\n');
+}
+
+const pct = (x: number | null): string => (x === null ? '-' : `${(100 * x).toFixed(1)}%`);
+const f3 = (x: number | null): string => (x === null ? '-' : x.toFixed(3));
+
+export function formatAnalysisSummary(a: AnalysisSummary): string {
+  return [
+    `grounding (${n(a.turnsWithReply)} turns with a reply):`,
+    `  reply sentences: ${n(a.sentences.supported)} supported, ${n(a.sentences.unsupported)} unsupported, ${n(a.sentences.lost)} supported only by clipped/dropped text`,
+    `  turns with unsupported sentences: ${n(a.turnsWithUnsupported)} (${pct(a.shareWithUnsupported)}); with evidence lost to the budget: ${n(a.turnsWithLostEvidence)} (${pct(a.shareWithLostEvidence)})`,
+    `  reviewer-marked evidence clipped or dropped: ${n(a.turnsWithEvidenceCut)} turn(s)`,
+    `  mean Knowledge F1: ${f3(a.meanKnowledgeF1)} over ${n(a.knowledgeF1Turns)} turn(s); mean Kendall tau (retriever vs BM25): ${f3(a.meanKendallTau)}`,
+    `  near-duplicate pairs: ${n(a.duplicatePairs)} wasting ${n(a.duplicateWasteTokens)} tokens; stale passages: ${n(a.stalePassages)} (${n(a.staleTokens)} tokens)`,
+    `  low-ranked passage far the best lexical match: ${n(a.lexicalMismatchTurns)} turn(s); evidence in the middle of a long block: ${n(a.middlePositionTurns)} turn(s)`,
+  ].join('\n');
 }

@@ -1,4 +1,5 @@
 import type { Fate, LogIssue, SegmentKind, Role } from '../log/types';
+import type { AnalysisSummary, TurnAnalysis } from '../analysis/types';
 
 export type KindTotals = Record<SegmentKind, number>;
 
@@ -69,6 +70,8 @@ export interface Ledger {
   usage?: { prompt: number; drift: number };
   /** Plain-words notes (slow or huge segments, plan/sent differences). */
   notes: string[];
+  /** Grounding and passage diagnostics (docs/grounding.md), when the audit ran them. */
+  analysis?: TurnAnalysis;
 }
 
 export interface AuditSummary {
@@ -98,4 +101,6 @@ export interface AuditReport {
   records: Ledger[];
   errors: LogIssue[];
   summary: AuditSummary;
+  /** Log-level grounding figures, when the audit ran the analysis. */
+  analysisSummary?: AnalysisSummary;
 }
