@@ -2,7 +2,7 @@
 import * as vscode from 'vscode';
 import { recordAtLine } from '../core/view/audited';
 import { codeLensTitle, codeLensTooltip, logSummary, statusText, statusTooltip } from '../core/view/codeLens';
-import { logDiagnostics, type DiagnosticDescriptor } from '../core/view/diagnostics';
+import { issueDiagnostic, logDiagnostics, onlyLooksLikeLog, recordDiagnostics, type DiagnosticDescriptor } from '../core/view/diagnostics';
 import { segmentHoverRows } from '../core/view/hover';
 import { charForRawColumn, locateRecordLine } from '../core/view/recordLine';
 import type { ActiveLog } from './activeLog';
@@ -93,27 +93,57 @@ const SEVERITY: Record<DiagnosticDescriptor['severity'], vscode.DiagnosticSeveri
 
 export class LogDiagnostics implements vscode.Disposable {
   readonly collection = vscode.languages.createDiagnosticCollection('spillway');
+  /** Latest update per document; an older one still running stops when a newer one starts. */
+  private readonly generation = new Map<string, number>();
 
   constructor(private readonly sessions: LogSessions) {}
 
-  update(s: LogSession): void {
-    if (!s.log) return;
+  /**
+   * Rebuilds a log's diagnostics. Locating values on a line means parsing it, so this works in
+   * slices that yield to the event loop (a 10,000-record log must not stall the extension host).
+   */
+  async update(s: LogSession): Promise<void> {
+    const log = s.log;
+    if (!log) return;
+    const key = s.doc.uri.toString();
+    const gen = (this.generation.get(key) ?? 0) + 1;
+    this.generation.set(key, gen);
     const doc = s.doc;
     const lineText = (line: number): string | undefined => (line >= 1 && line <= doc.lineCount ? doc.lineAt(line - 1).text : undefined);
-    const diags = logDiagnostics(s.log, lineText, this.sessions.settings.checks).map((d) => {
-      const diag = new vscode.Diagnostic(new vscode.Range(d.line - 1, d.start, d.line - 1, d.end), d.message, SEVERITY[d.severity]);
-      diag.code = d.code;
-      diag.source = 'Spillway';
-      return diag;
-    });
-    this.collection.set(doc.uri, diags);
+    const checks = this.sessions.settings.checks;
+    const out: vscode.Diagnostic[] = [];
+    const add = (descs: DiagnosticDescriptor[]): void => {
+      for (const d of descs) {
+        const diag = new vscode.Diagnostic(new vscode.Range(d.line - 1, d.start, d.line - 1, d.end), d.message, SEVERITY[d.severity]);
+        diag.code = d.code;
+        diag.source = 'Spillway';
+        out.push(diag);
+      }
+    };
+    if (onlyLooksLikeLog(log.records.length, log.issues.length)) add(logDiagnostics(log, lineText, checks));
+    else {
+      if (checks.malformed) for (const issue of log.issues) add([issueDiagnostic(issue, lineText(issue.line))]);
+      let slice = performance.now();
+      for (const rec of log.records) {
+        if (performance.now() - slice > 12) {
+          await new Promise((r) => setTimeout(r, 0));
+          if (this.generation.get(key) !== gen || s.log !== log) return; // superseded
+          slice = performance.now();
+        }
+        const text = lineText(rec.line);
+        if (text !== undefined) add(recordDiagnostics(rec, text, checks));
+      }
+    }
+    if (this.generation.get(key) === gen) this.collection.set(doc.uri, out);
   }
 
   clear(uri: vscode.Uri): void {
+    this.generation.delete(uri.toString());
     this.collection.delete(uri);
   }
 
   dispose(): void {
+    this.generation.clear();
     this.collection.dispose();
   }
 }

@@ -11,6 +11,9 @@ import { disposeOutput, output } from './output';
 import { PANEL_VIEW_ID, PanelProvider } from './panel';
 import { LogSessions } from './sessions';
 
+/** When this module's body runs, every other module of the bundle has been evaluated. */
+const bundleEvaluated = performance.now();
+
 /** Documents the CodeLens and hover providers are asked about; sessions decide which are logs. */
 const SELECTOR: vscode.DocumentSelector = [{ language: 'jsonl' }, { language: 'json' }, { pattern: '**/*.{jsonl,ndjson}' }, { language: 'plaintext' }];
 
@@ -35,7 +38,7 @@ export function activate(context: vscode.ExtensionContext): void {
     vscode.languages.registerHoverProvider(SELECTOR, new SegmentHover(sessions)),
     vscode.window.registerWebviewViewProvider(PANEL_VIEW_ID, panel),
     sessions.onDidUpdate((s) => {
-      diagnostics.update(s);
+      void diagnostics.update(s);
       lenses.refresh();
       if (s === active.session) status.update(active);
     }),
@@ -49,7 +52,10 @@ export function activate(context: vscode.ExtensionContext): void {
   );
   status.update(active);
   const t1 = performance.now();
-  log.info(`Spillway activated in ${(t1 - t0).toFixed(1)} ms (activate), ${(t1 - bundleStart).toFixed(1)} ms since the bundle started evaluating`);
+  log.info(
+    `Spillway activated: bundle evaluated in ${(bundleEvaluated - bundleStart).toFixed(1)} ms, activate() took ${(t1 - t0).toFixed(1)} ms ` +
+      `(the tokenizer and validator load with the first log)`,
+  );
 }
 
 export function deactivate(): void {
