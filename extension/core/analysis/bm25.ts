@@ -35,6 +35,10 @@ export function bm25Scorer(docs: readonly { id: string; text: string }[], tokeni
     if (seen.has(doc.id)) throw new Error(`bm25Scores: duplicate document id "${doc.id}"`);
     seen.add(doc.id);
   }
+  // Every term of the collection: query terms outside it score 0 and are not searched at all
+  // (minisearch's per-term search overhead dominates for a long reply used as the query).
+  const vocabulary = new Set<string>();
+  for (const doc of docs) for (const t of tokenize(doc.text)) vocabulary.add(t);
   const index = new MiniSearch<{ id: number; text: string }>({
     fields: ['text'],
     tokenize: (text) => tokenize(text),
@@ -52,7 +56,7 @@ export function bm25Scorer(docs: readonly { id: string; text: string }[], tokeni
     // number of distinct terms a document matches); BM25+ is a sum over query terms, so the
     // chunk scores (each divided by its own coordination factor) add up to the same figure.
     const counts = new Map<string, number>();
-    for (const t of tokenize(query)) counts.set(t, (counts.get(t) ?? 0) + 1);
+    for (const t of tokenize(query)) if (vocabulary.has(t)) counts.set(t, (counts.get(t) ?? 0) + 1);
     const boostTerm = (term: string): number => counts.get(term) ?? 1;
     const terms = [...counts.keys()];
     for (let at = 0; at < terms.length; at += QUERY_CHUNK) {
