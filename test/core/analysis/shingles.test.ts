@@ -153,6 +153,27 @@ describe('nearDuplicates', () => {
     expect(check.pairs[0]!.resemblance).toBeCloseTo(1 / 3, 12);
     expect(check.pairs[0]!.containmentAB).toBeCloseTo(4 / 12, 12);
   });
+  it('MinHash containment from r and exact set sizes stays within the 3-SE band', async () => {
+    await loadShingleHasher();
+    // A = t0..t999, B = t0..t499 (w = 1): exact r = 500/1000 = 0.5, c(B in A) = 1, c(A in B) = 0.5.
+    // With k = 128, SE(r̂) = sqrt(0.25/128) ≈ 0.044, so r̂ ∈ [0.367, 0.633] within 3 SE. Then
+    // ĉ(B,A) = min(1, r̂(1000 + 500)/((1 + r̂)·500)) = min(1, 3r̂/(1 + r̂)) ≥ 0.80, and
+    // ĉ(A,B) = 1.5r̂/(1 + r̂) ∈ [0.40, 0.59].
+    const seq = (n: number): string => Array.from({ length: n }, (_, i) => `t${i}`).join(' ');
+    const check = nearDuplicates(
+      [
+        { id: 'A', text: seq(1000), keptTokens: 1 },
+        { id: 'B', text: seq(500), keptTokens: 1 },
+      ],
+      { ...settings, shingleWords: 1, minhashAboveShingles: 100 },
+    );
+    expect(check.method).toBe('minhash');
+    const pair = check.pairs[0]!;
+    expect(Math.abs(pair.resemblance - 0.5)).toBeLessThan(3 * Math.sqrt(0.25 / 128));
+    expect(pair.containmentBA).toBeGreaterThanOrEqual(0.8);
+    expect(pair.containmentAB).toBeGreaterThanOrEqual(0.4);
+    expect(pair.containmentAB).toBeLessThanOrEqual(0.59);
+  });
   it('switches to MinHash above the shingle limit (when the hasher is loaded)', async () => {
     await loadShingleHasher();
     const check = nearDuplicates(
