@@ -125,3 +125,15 @@ export function parseTokens(s: string, what: string): number {
   if (!Number.isSafeInteger(v)) throw new UsageError(`${what} is too large: ${s}`);
   return v;
 }
+
+/** The first lines of a file (at most `bytes` bytes read), for cheap format recognition. */
+export async function headLines(path: string, bytes = 64 * 1024): Promise<string[]> {
+  const fh = await fsp.open(path, 'r');
+  try {
+    const buf = Buffer.alloc(bytes);
+    const { bytesRead } = await fh.read(buf, 0, bytes, 0);
+    return buf.subarray(0, bytesRead).toString('utf8').split('\n').slice(0, 8);
+  } finally {
+    await fh.close();
+  }
+}

@@ -4,6 +4,8 @@ import { registerAudit } from './commands/audit';
 import { registerRepack } from './commands/repack';
 import { registerCompare } from './commands/compare';
 import { registerSweep } from './commands/sweep';
+import { registerConvert } from './commands/convert';
+import { registerInspect } from './commands/inspect';
 import { EXIT, UsageError } from './io';
 
 export async function main(argv: string[]): Promise<number> {
@@ -19,6 +21,8 @@ export async function main(argv: string[]): Promise<number> {
   registerRepack(program, setExit);
   registerCompare(program, setExit);
   registerSweep(program, setExit);
+  registerConvert(program, setExit);
+  registerInspect(program, setExit);
   try {
     await program.parseAsync(argv, { from: 'user' });
   } catch (e) {

@@ -93,3 +93,20 @@ describe('atomic output', () => {
     expect(() => parseTokens('8.5k', 'x')).toThrow();
   });
 });
+
+describe('spillway audit on imported shapes', () => {
+  it('recognises a chat-message log and audits it converted in memory, like the converted file', async () => {
+    const dir = workdir();
+    const src = join(__dirname, '../fixtures/import/chat-requests.jsonl');
+    const before = readFileSync(src);
+    const converted = join(dir, 'converted.jsonl');
+    expect(await main(['convert', src, '--from', 'chat', '--out', converted])).toBe(0);
+    expect(await main(['audit', src, '--format', 'json', '--out', join(dir, 'a.json'), '--quiet', '--no-analysis'])).toBe(0);
+    expect(await main(['audit', converted, '--format', 'json', '--out', join(dir, 'b.json'), '--quiet', '--no-analysis'])).toBe(0);
+    const a = JSON.parse(readFileSync(join(dir, 'a.json'), 'utf8'));
+    const b = JSON.parse(readFileSync(join(dir, 'b.json'), 'utf8'));
+    const strip = (r: { used: number; budget: number; segments: unknown[] }) => ({ used: r.used, budget: r.budget, segments: r.segments });
+    expect(a.records.map(strip)).toEqual(b.records.map(strip));
+    expect(readFileSync(src).equals(before)).toBe(true);
+  });
+});

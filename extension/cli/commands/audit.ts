@@ -1,12 +1,15 @@
 /** `spillway audit <log>`: the per-turn ledger as text, JSON (`spillway.audit/1`) or HTML. */
 import type { Command } from 'commander';
-import { auditStream } from '../../core/audit/audit';
+import { auditItems } from '../../core/audit/audit';
+import { readLog, readLogLines, type ReadOptions } from '../../core/log/reader';
+import { detectFormat } from '../../core/import/detect';
+import { importedLogItems } from '../../core/import/index';
 import { renderHtmlReport } from '../../core/audit/html';
 import { formatAnalysisSummary, formatSummary, formatTable, TEXT_COLUMNS, textRow } from '../../core/audit/text';
 import type { AuditOptions, AuditReport, Ledger } from '../../core/audit/types';
 import { isEncodingName, ENCODINGS } from '../../core/tokens/encoder';
 import { parsePlan, PlanError } from '../../core/pack/plans';
-import { atomicWriter, EXIT, openLog, parseTokens, stdoutWriter, UsageError, type AtomicWriter } from '../io';
+import { atomicWriter, EXIT, headLines, openLog, parseTokens, stdoutWriter, UsageError, type AtomicWriter } from '../io';
 
 export interface AuditCliOptions {
   budget?: string;
@@ -19,6 +22,7 @@ export interface AuditCliOptions {
   failOnOverBudget?: boolean;
   failOnMalformed?: boolean;
   maxLineBytes?: string;
+  from?: string;
   quiet?: boolean;
   /** commander's --no-analysis */
   analysis?: boolean;
@@ -46,6 +50,21 @@ export function auditOptionsFrom(o: { budget?: string; reserve?: string; encodin
 
 const TEXT_STREAM_AFTER = 2000;
 
+const FORMATS = ['auto', 'spillway', 'chat', 'otlp'] as const;
+
+/** Reads a Spillway log as it is, or a chat / OTLP log converted in memory (the file is never touched). */
+async function logItems(file: string, from: string | undefined, chunks: AsyncIterable<Uint8Array>, read: ReadOptions | undefined) {
+  const want = from ?? 'auto';
+  if (!(FORMATS as readonly string[]).includes(want)) throw new UsageError(`--from must be one of ${FORMATS.join(', ')}, got "${want}"`);
+  const format = want === 'auto' ? (detectFormat(await headLines(file)) ?? 'spillway') : want;
+  if (format === 'spillway') return readLog(chunks, read);
+  return importedLogItems(readLogLines(chunks, read), format as 'chat' | 'otlp');
+}
+
+function auditStream(file: string, from: string | undefined, chunks: AsyncIterable<Uint8Array>, opts: Parameters<typeof auditItems>[1], ctx: Parameters<typeof auditItems>[2] = {}) {
+  return logItems(file, from, chunks, ctx.read).then((items) => auditItems(items, opts, ctx));
+}
+
 export async function runAudit(file: string, o: AuditCliOptions): Promise<number> {
   if (!['text', 'json', 'html'].includes(o.format)) throw new UsageError(`--format must be text, json or html, got "${o.format}"`);
   const opts = auditOptionsFrom(o);
@@ -61,7 +80,7 @@ export async function runAudit(file: string, o: AuditCliOptions): Promise<number
       // Streamed: one record at a time, so a 1 GB log does not build a 1 GB report in memory.
       let first = true;
       await out.write(`{"schema":"spillway.audit/1","file":${JSON.stringify(file)},"options":${JSON.stringify(opts)},"records":[\n`);
-      report = await auditStream(chunks, { ...opts, file }, {
+      report = await auditStream(file, o.from, chunks, { ...opts, file }, {
         read,
         onProgress,
         analysis,
@@ -74,14 +93,14 @@ export async function runAudit(file: string, o: AuditCliOptions): Promise<number
       await out.write(`\n],"errors":${JSON.stringify(report.errors)},"summary":${JSON.stringify(report.summary)}${tail}}\n`);
     } else if (o.format === 'text') {
       const rows: string[][] = [];
-      report = await auditStream(chunks, { ...opts, file }, { read, onProgress, analysis, onLedger: (l) => rows.push(textRow(l)) });
+      report = await auditStream(file, o.from, chunks, { ...opts, file }, { read, onProgress, analysis, onLedger: (l) => rows.push(textRow(l)) });
       const shown = rows.length > TEXT_STREAM_AFTER ? rows.slice(0, TEXT_STREAM_AFTER) : rows;
       await out.write(formatTable(shown, TEXT_COLUMNS) + '\n');
       if (rows.length > shown.length) await out.write(`… ${rows.length - shown.length} more turns (use --format json for all of them)\n`);
       await out.write('\n' + formatSummary(report.summary, report.errors) + '\n');
       if (report.analysisSummary) await out.write(formatAnalysisSummary(report.analysisSummary) + '\n');
     } else {
-      report = await auditStream(chunks, { ...opts, file }, { read, onProgress, analysis });
+      report = await auditStream(file, o.from, chunks, { ...opts, file }, { read, onProgress, analysis });
       await out.write(renderHtmlReport(report));
     }
     if (progress) process.stderr.write('\n');
@@ -113,6 +132,7 @@ export function registerAudit(program: Command, setExit: (code: number) => void)
     .option('--fail-on-over-budget', 'exit 1 if any turn is over budget')
     .option('--fail-on-malformed', 'exit 1 if any line is malformed')
     .option('--max-line-bytes <n>', 'skip (and report) lines longer than this')
+    .option('--from <format>', 'input shape: auto (recognise), spillway, chat (chat-message requests) or otlp (OpenTelemetry GenAI traces); imports are converted in memory', 'auto')
     .option('--quiet', 'no progress or notices on stderr')
     .option('--no-analysis', 'skip the grounding analysis (reply support, BM25, near-duplicates, position, staleness)')
     .action(async (log: string, o: AuditCliOptions) => setExit(await runAudit(log, o)));
