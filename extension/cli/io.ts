@@ -1,5 +1,5 @@
 /** CLI I/O: streaming file input, atomic output beside the target, exit codes. */
-import { createReadStream, createWriteStream, promises as fsp, statSync, type WriteStream } from 'node:fs';
+import { createReadStream, createWriteStream, mkdirSync, promises as fsp, statSync, type WriteStream } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 import { randomBytes } from 'node:crypto';
 import { once } from 'node:events';
@@ -45,6 +45,7 @@ export function atomicWriter(target: string): AtomicWriter {
     special = false;
   }
   if (special) return streamWriter(createWriteStream(abs, { flags: 'a' }));
+  mkdirSync(dirname(abs), { recursive: true });
   const tmp = join(dirname(abs), `.${basename(abs)}.${randomBytes(6).toString('hex')}.tmp`);
   const out = createWriteStream(tmp, { flags: 'wx' });
   let closed = false;
