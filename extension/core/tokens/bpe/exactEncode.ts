@@ -17,9 +17,9 @@ export const LONG_PIECE_THRESHOLD = 128;
 /**
  * Characters whose pieces must not be handed to gpt-tokenizer:
  * - U+FEFF, U+0085: JS `\s` and the reference's White_Space disagree (see pretokenize.ts);
- * - U+017F (long s): the reference matches contractions case-insensitively, and Unicode case folding
- *   maps "ſ" to "s", so "'ſ" is a contraction piece there; the corrected pattern splits it the same way,
- *   but gpt-tokenizer's own pattern would re-split such a piece differently;
+ * - U+017F (long s): the reference matches contractions case-insensitively and folds "ſ" to "s", so "'ſ"
+ *   is a contraction piece there and in the corrected pattern, but gpt-tokenizer's own pattern would
+ *   re-split such a piece;
  * - lone surrogates (\p{Cs} under /u): the reference sees U+FFFD (the JS→Rust string conversion replaces
  *   them) and looks the whole piece up as bytes; gpt-tokenizer looks the JS string up and misses.
  */

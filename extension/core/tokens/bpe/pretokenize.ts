@@ -6,6 +6,11 @@
  * U+FEFF (the byte-order mark) and omits U+0085 (NEXT LINE). Measured: "\uFEFFhello" is [3305, 15339] in
  * cl100k_base with tiktoken but [171, 3299, 15339] with gpt-tokenizer 4.0.0 (kept as a test case).
  * So every `\s` / `\S` in gpt-tokenizer's pattern is rewritten to the explicit White_Space set.
+ *
+ * Second, the reference writes its contractions case-insensitively (`'(?i:[sdmt]|ll|ve|re)`), and Rust's
+ * case folding maps U+017F LATIN SMALL LETTER LONG S to "s"; gpt-tokenizer spells them `[sS]`. So `[sS]`
+ * becomes `[sSſ]`. (No input was found where this changes ids — tokens never span "ſ" and its neighbours
+ * in either vocabulary — but the pieces now match the reference's by construction.)
  */
 import { CL100K_TOKEN_SPLIT_REGEX, O200K_TOKEN_SPLIT_REGEX } from 'gpt-tokenizer/encodingParams/constants';
 
@@ -38,7 +43,15 @@ export function withUnicodeWhiteSpace(source: string): string {
   return out;
 }
 
+/** Adds the long s to the contraction letter "s", as Unicode simple case folding does. */
+export function withFoldedContractions(source: string): string {
+  if (!source.includes('[sS]')) throw new Error('gpt-tokenizer split pattern changed: contraction [sS] not found');
+  return source.split('[sS]').join('[sS\u017f]');
+}
+
+const reference = (source: string): RegExp => new RegExp(withFoldedContractions(withUnicodeWhiteSpace(source)), 'gu');
+
 export const SPLIT_PATTERNS = {
-  cl100k_base: new RegExp(withUnicodeWhiteSpace(CL100K_TOKEN_SPLIT_REGEX.source), 'gu'),
-  o200k_base: new RegExp(withUnicodeWhiteSpace(O200K_TOKEN_SPLIT_REGEX.source), 'gu'),
+  cl100k_base: reference(CL100K_TOKEN_SPLIT_REGEX.source),
+  o200k_base: reference(O200K_TOKEN_SPLIT_REGEX.source),
 } as const;
