@@ -143,7 +143,7 @@ export class TurnList {
         h('span', { class: 'tr-line' }, `L${r.line}`),
         h('span', { class: 'tr-conv' }, `${r.conversation} #${r.turn}`),
         h('span', { class: 'tr-used' }, `${int(r.used)} / ${int(r.budget)} (${pct(r.used, r.budget)})`),
-        h('span', { class: 'tr-flags' }, r.state !== 'ok' ? '⚠ over ' : '', lost ? `${FATE_ICON[r.rank1Fate!]} rank-1 ${r.rank1Fate} ` : '', !lost && r.clipped ? `✂${r.clipped} ` : '', !lost && r.dropped ? `✕${r.dropped}` : ''),
+        h('span', { class: 'tr-flags' }, r.state !== 'ok' ? '⚠ over ' : '', lost ? `${FATE_ICON[r.rank1Fate!]} rank-1 ${r.rank1Fate} ` : '', !lost && r.clipped ? `✂ ${r.clipped} clipped ` : '', !lost && r.dropped ? `✕ ${r.dropped} dropped` : ''),
       );
       el.addEventListener('click', () => {
         this.active = i;

@@ -255,6 +255,11 @@ async function main(): Promise<void> {
   });
   const report: string[] = [];
   try {
+    if (process.env.SCALE_ONLY) {
+      await scaleCheck(browser, report);
+      console.log(report.join('\n'));
+      return;
+    }
     if (process.env.FIRST_PAINT_RUNS) {
       for (const log of logs) await inPageFirstPaint(browser, log, Number(process.env.FIRST_PAINT_RUNS), report);
       if (process.env.FIRST_PAINT_BINDING) for (const log of logs) await firstPaintRuns(browser, log, Number(process.env.FIRST_PAINT_RUNS), report);
