@@ -99,6 +99,9 @@ export class LogSession {
     this.running?.abort();
     const ac = new AbortController();
     this.running = ac;
+    // Never audit inside the caller's turn (e.g. activate()): loading the engine is slow.
+    await new Promise((r) => setTimeout(r, 0));
+    if (ac.signal.aborted) return;
     const t0 = performance.now();
     const big = this.doc.lineCount > NOTIFY_LINES;
     try {

@@ -1,6 +1,9 @@
 /** Number formatting for editor text. Fixed locale so CodeLens text is the same on every machine (and in e2e checks). */
-const grouped = new Intl.NumberFormat('en-US', { maximumFractionDigits: 0 });
-const percent = new Intl.NumberFormat('en-US', { maximumFractionDigits: 1 });
+// Created on first use: building an Intl formatter loads locale data, which activation should not pay for.
+let groupedFmt: Intl.NumberFormat | undefined;
+let percentFmt: Intl.NumberFormat | undefined;
+const grouped = { format: (n: number) => (groupedFmt ??= new Intl.NumberFormat('en-US', { maximumFractionDigits: 0 })).format(n) };
+const percent = { format: (n: number) => (percentFmt ??= new Intl.NumberFormat('en-US', { maximumFractionDigits: 1 })).format(n) };
 
 /** 7034 → "7,034". */
 export function fmt(n: number): string {
