@@ -121,6 +121,26 @@ describe('panel app and the host protocol', () => {
     expect(last(b.api, 'revealLine')).toEqual({ type: 'revealLine', line: 9 });
   });
 
+  it('a conversation reply or a segment click rebuilds only their parts of the view', () => {
+    const b = boot();
+    openWithTurn(b);
+    const bar = b.root.querySelector('svg.budget-bar');
+    const table = b.root.querySelector('table.segment-table');
+    const req = last(b.api, 'requestConversation')!;
+    b.app.handle({ type: 'conversation', requestId: req.requestId, conversation: 'trip-0042', rows: conversationRows(5) });
+    expect(b.root.querySelector('svg.budget-bar')).toBe(bar);
+    expect(b.root.querySelector('table.segment-table')).toBe(table);
+    const timeline = b.root.querySelector('svg.timeline');
+    expect(timeline).not.toBeNull();
+    (b.root.querySelector('tr[data-id="p1"]') as HTMLElement).click();
+    expect(b.root.querySelector('svg.budget-bar')).toBe(bar);
+    expect(b.root.querySelector('svg.timeline')).toBe(timeline);
+    expect(b.root.querySelector('table.segment-table')).not.toBe(table);
+    expect(b.root.querySelector('tr[data-id="p1"]')!.getAttribute('aria-selected')).toBe('true');
+    // the previous/next buttons appear once the conversation is known: turn 3 of 5 has both
+    expect(Array.from(b.root.querySelectorAll('.turn-nav vscode-button')).map((x) => x.hasAttribute('disabled'))).toEqual([false, false, false]);
+  });
+
   it('asks for token boundaries when the option is switched on and draws them', () => {
     const b = boot();
     openWithTurn(b);

@@ -59,6 +59,9 @@ export class PanelApp {
   readonly list: TurnList;
   /** Kept across renders: replacing the widget while it handles its own click loses the click. */
   private readonly boundaryToggle: HTMLElement & { checked?: boolean };
+  /** Containers of the parts of the turn view that are rebuilt on their own. */
+  private slots: { head: HTMLElement; table: HTMLElement; text: HTMLElement; conv: HTMLElement } | undefined;
+  private renderedDetail: TurnDetail | undefined;
 
   constructor(root: HTMLElement, private readonly api: VsCodeApi, private readonly opts: PanelAppOptions = {}) {
     this.root = root;
@@ -72,7 +75,7 @@ export class PanelApp {
     this.boundaryToggle.addEventListener('change', () => {
       this.showBoundaries = Boolean(this.boundaryToggle.checked);
       if (this.showBoundaries) this.askBoundaries();
-      this.renderTurn();
+      this.renderTurn(['text']);
     });
     const logPanel = h('div', {}, this.overviewBody, section('All turns', 'h-all-turns', this.list.element));
 
@@ -131,7 +134,7 @@ export class PanelApp {
   selectSegment(id: string, reveal: boolean): void {
     this.state.segmentId = id;
     this.save();
-    this.renderTurn();
+    this.renderTurn(['table', 'text']);
     if (this.showBoundaries) this.askBoundaries();
     if (reveal && this.detail) this.post({ type: 'revealLine', line: this.detail.row.line, segmentId: id });
   }
@@ -190,7 +193,7 @@ export class PanelApp {
       case 'conversation':
         if (msg.requestId !== this.latest.conversation) return;
         this.conversation = { id: msg.conversation, rows: msg.rows };
-        this.renderTurn();
+        this.renderTurn(['head', 'conv']);
         return;
       case 'overview':
         if (msg.requestId !== this.latest.overview) return;
@@ -199,7 +202,7 @@ export class PanelApp {
         return;
       case 'tokenBoundaries':
         this.boundaries.set(`${msg.line}:${msg.segmentId}`, msg.boundaries);
-        if (this.detail?.row.line === msg.line && this.state.segmentId === msg.segmentId) this.renderTurn();
+        if (this.detail?.row.line === msg.line && this.state.segmentId === msg.segmentId) this.renderTurn(['text']);
         return;
       case 'selectTurn':
         if (msg.line !== this.state.line || !this.detail) this.selectTurn(msg.line, false);
@@ -250,82 +253,86 @@ export class PanelApp {
     else setTimeout(done, 0);
   }
 
-  /** Render the whole turn view from the current detail, conversation and selection. */
-  renderTurn(): void {
+  /**
+   * Render the turn view from the current detail, conversation and selection. A new detail renders
+   * everything; otherwise only the named parts are rebuilt (a conversation reply, a segment click or
+   * the boundary option leave the rest of the view, and its layout, alone).
+   */
+  renderTurn(only?: ReadonlyArray<'head' | 'table' | 'text' | 'conv'>): void {
     const d = this.detail;
     if (!d) return;
     const r = d.row;
-    // Re-rendering replaces the nodes; remember where keyboard focus was to put it back.
+    // Rebuilt parts replace their nodes; remember where keyboard focus was to put it back.
     const active = document.activeElement;
     const focusedId = active && this.turnBody.contains(active) ? active.closest('tr[data-id]')?.getAttribute('data-id') : null;
     const focusedTimeline = Boolean(active && this.turnBody.contains(active) && active.closest('g.tl-turn'));
-    const bar = budgetBar(r, d.spill);
-    const stateText = r.state === 'ok' ? `${int(d.free)} free` : r.state === 'over-budget' ? `⚠ over budget by ${int(d.over)}` : '⚠ over budget before passages';
+    const full = !only || this.renderedDetail !== d || !this.slots;
+    if (full) {
+      const bar = budgetBar(r, d.spill);
+      const notes: Array<Node | null> = [];
+      if (d.usage) notes.push(h('p', {}, `API-reported prompt tokens: ${int(d.usage.prompt)} (drift ${d.usage.drift >= 0 ? '+' : ''}${int(d.usage.drift)} against the ledger).`));
+      if (d.notes.length) notes.push(h('ul', { class: 'notes' }, ...d.notes.map((n) => h('li', {}, n))));
+      if (d.reply !== undefined) notes.push(h('details', {}, h('summary', {}, 'Reply'), h('p', { class: 'reply-text' }, d.reply)));
+      this.slots = { head: h('div', { class: 'turn-head' }), table: h('div', { class: 'table-scroll' }), text: h('div', { class: 'text-slot' }), conv: h('div', { class: 'conv-slot' }) };
+      setChildren(
+        this.turnBody,
+        this.slots.head,
+        section('Budget', 'h-budget', renderBudgetBar(bar), renderBudgetTable(bar)),
+        section('Segments', 'h-segments', h('p', { class: 'muted' }, `${d.segments.length} segments · ${r.clipped} clipped · ${r.dropped} dropped · ${int(d.spill)} tokens spilled`), this.slots.table),
+        section('Segment text', 'h-text', this.boundaryToggle, this.slots.text),
+        section('Conversation', 'h-conversation', this.slots.conv),
+        notes.length ? section('Notes', 'h-notes', ...notes) : null,
+      );
+      this.renderedDetail = d;
+    }
+    const slots = this.slots!;
+    const want = (part: 'head' | 'table' | 'text' | 'conv'): boolean => full || only!.includes(part);
     const conv = this.conversation?.id === r.conversation ? [...this.conversation.rows].sort((a, b) => a.turn - b.turn) : undefined;
-    const at = conv ? conv.findIndex((x) => x.line === r.line) : -1;
-    const prev = at > 0 ? conv![at - 1] : undefined;
-    const next = conv && at >= 0 && at < conv.length - 1 ? conv[at + 1] : undefined;
-    const navButton = (label: string, target: TurnRow | undefined): HTMLElement => {
-      const b = h('vscode-button', { secondary: true, disabled: !target, 'aria-label': label }, label);
-      if (target) b.addEventListener('click', () => this.selectTurn(target.line, true));
-      return b;
-    };
-    const reveal = h('vscode-button', { secondary: true }, 'Reveal in editor');
-    reveal.addEventListener('click', () => this.post({ type: 'revealLine', line: r.line }));
 
-    const head = h(
-      'div',
-      { class: 'turn-head' },
-      h('h2', { class: 'turn-title' }, `${r.conversation} · turn ${r.turn}`),
-      h('span', { class: `state-badge state-${r.state}` }, stateText),
-      h('p', { class: 'muted turn-meta' }, `line ${int(r.line)} · ${d.model} · ${d.encoding} · window ${int(r.window)} − reserve ${int(r.reserve)} = budget ${int(r.budget)} · plan ${d.plan} (fates from ${d.fatesFrom}) · framing ${d.framingProfile}`),
-      h('div', { class: 'turn-nav' }, navButton('◀ Previous turn', prev), navButton('Next turn ▶', next), reveal),
-    );
-
-    const selected = d.segments.find((sg) => sg.id === this.state.segmentId);
-    const boundaries = selected ? this.boundaries.get(`${r.line}:${selected.id}`) : undefined;
-    const checkbox = this.boundaryToggle;
-    checkbox.checked = this.showBoundaries;
-
-    const notes: Array<Node | null> = [];
-    if (d.usage) notes.push(h('p', {}, `API-reported prompt tokens: ${int(d.usage.prompt)} (drift ${d.usage.drift >= 0 ? '+' : ''}${int(d.usage.drift)} against the ledger).`));
-    if (d.notes.length) notes.push(h('ul', { class: 'notes' }, ...d.notes.map((n) => h('li', {}, n))));
-    if (d.reply !== undefined) notes.push(h('details', {}, h('summary', {}, 'Reply'), h('p', { class: 'reply-text' }, d.reply)));
-
-    setChildren(
-      this.turnBody,
-      head,
-      section('Budget', 'h-budget', renderBudgetBar(bar), renderBudgetTable(bar)),
-      section(
-        'Segments',
-        'h-segments',
-        h('p', { class: 'muted' }, `${d.segments.length} segments · ${r.clipped} clipped · ${r.dropped} dropped · ${int(d.spill)} tokens spilled`),
-        h('div', { class: 'table-scroll' }, renderSegmentTable({ segments: d.segments, selectedId: this.state.segmentId, sort: this.sort, onSelect: (id) => this.selectSegment(id, true), onSort: (sort) => this.resort(sort) })),
-      ),
-      section(
-        'Segment text',
-        'h-text',
-        checkbox,
+    if (want('head')) {
+      const stateText = r.state === 'ok' ? `${int(d.free)} free` : r.state === 'over-budget' ? `⚠ over budget by ${int(d.over)}` : '⚠ over budget before passages';
+      const at = conv ? conv.findIndex((x) => x.line === r.line) : -1;
+      const prev = at > 0 ? conv![at - 1] : undefined;
+      const next = conv && at >= 0 && at < conv.length - 1 ? conv[at + 1] : undefined;
+      const navButton = (label: string, target: TurnRow | undefined): HTMLElement => {
+        const b = h('vscode-button', { secondary: true, disabled: !target, 'aria-label': label }, label);
+        if (target) b.addEventListener('click', () => this.selectTurn(target.line, true));
+        return b;
+      };
+      const reveal = h('vscode-button', { secondary: true }, 'Reveal in editor');
+      reveal.addEventListener('click', () => this.post({ type: 'revealLine', line: r.line }));
+      setChildren(
+        slots.head,
+        h('h2', { class: 'turn-title' }, `${r.conversation} · turn ${r.turn}`),
+        h('span', { class: `state-badge state-${r.state}` }, stateText),
+        h('p', { class: 'muted turn-meta' }, `line ${int(r.line)} · ${d.model} · ${d.encoding} · window ${int(r.window)} − reserve ${int(r.reserve)} = budget ${int(r.budget)} · plan ${d.plan} (fates from ${d.fatesFrom}) · framing ${d.framingProfile}`),
+        h('div', { class: 'turn-nav' }, navButton('◀ Previous turn', prev), navButton('Next turn ▶', next), reveal),
+      );
+    }
+    if (want('table'))
+      setChildren(slots.table, renderSegmentTable({ segments: d.segments, selectedId: this.state.segmentId, sort: this.sort, onSelect: (id) => this.selectSegment(id, true), onSort: (sort) => this.resort(sort) }));
+    if (want('text')) {
+      const selected = d.segments.find((sg) => sg.id === this.state.segmentId);
+      const boundaries = selected ? this.boundaries.get(`${r.line}:${selected.id}`) : undefined;
+      this.boundaryToggle.checked = this.showBoundaries;
+      setChildren(
+        slots.text,
         selected ? renderPassage({ segment: selected, boundaries: this.showBoundaries ? boundaries : undefined, boundariesPending: this.showBoundaries && !boundaries }) : h('p', { class: 'muted' }, 'Select a segment in the table to see its text and cut point.'),
-      ),
-      section(
-        'Conversation',
-        'h-conversation',
-        conv ? renderTimeline({ conversation: r.conversation, rows: conv, selectedLine: r.line, onSelect: (line) => this.selectTurn(line, true) }) : h('p', { class: 'muted' }, 'Loading the conversation…'),
-      ),
-      notes.length ? section('Notes', 'h-notes', ...notes) : null,
-    );
-    // Long texts scroll inside their box: bring the cut into view so it is seen without hunting.
-    const box = this.turnBody.querySelector<HTMLElement>('.passage-text');
-    const mark = box?.querySelector<HTMLElement>('.cut-mark');
-    if (box && mark && box.scrollHeight > box.clientHeight) box.scrollTop = Math.max(0, mark.offsetTop - box.clientHeight / 2);
+      );
+      // Long texts scroll inside their box: bring the cut into view so it is seen without hunting.
+      const box = slots.text.querySelector<HTMLElement>('.passage-text');
+      const mark = box?.querySelector<HTMLElement>('.cut-mark');
+      if (box && mark && box.scrollHeight > box.clientHeight) box.scrollTop = Math.max(0, mark.offsetTop - box.clientHeight / 2);
+    }
+    if (want('conv'))
+      setChildren(slots.conv, conv ? renderTimeline({ conversation: r.conversation, rows: conv, selectedLine: r.line, onSelect: (line) => this.selectTurn(line, true) }) : h('p', { class: 'muted' }, 'Loading the conversation…'));
     if (focusedId) Array.from(this.turnBody.querySelectorAll<HTMLElement>('tr[data-id]')).find((tr) => tr.dataset.id === focusedId)?.focus();
     if (focusedTimeline) this.turnBody.querySelector<SVGGElement>('g.tl-turn[tabindex="0"]')?.focus();
   }
 
   private resort(sort: SortState): void {
     this.sort = sort;
-    this.renderTurn();
+    this.renderTurn(['table']);
     this.turnBody.querySelector<HTMLElement>(`button[data-sort="${sort.key}"]`)?.focus();
   }
 }
