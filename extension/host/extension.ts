@@ -7,6 +7,7 @@ import * as vscode from 'vscode';
 import { ActiveLog } from './activeLog';
 import { registerCommands } from './commands';
 import { LogDiagnostics, LogStatusBar, RecordCodeLenses, SegmentHover } from './editorFeatures';
+import { watchLargeLogs } from './largeLogs';
 import { disposeOutput, output } from './output';
 import { PANEL_VIEW_ID, PanelProvider } from './panel';
 import { LogSessions } from './sessions';
@@ -48,6 +49,7 @@ export function activate(context: vscode.ExtensionContext): void {
     }),
     active.onDidChange(() => status.update(active)),
     ...registerCommands(sessions, active, panel),
+    watchLargeLogs('spillway.auditLogToHtml'),
     { dispose: disposeOutput },
   );
   status.update(active);
