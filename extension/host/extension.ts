@@ -16,7 +16,7 @@ import { LogSessions } from './sessions';
 const bundleEvaluated = performance.now();
 
 /** Documents the CodeLens and hover providers are asked about; sessions decide which are logs. */
-const SELECTOR: vscode.DocumentSelector = [{ language: 'jsonl' }, { language: 'json' }, { pattern: '**/*.{jsonl,ndjson}' }, { language: 'plaintext' }];
+const SELECTOR: vscode.DocumentSelector = [{ language: 'jsonl' }, { language: 'json' }, { language: 'plaintext' }, { language: 'log' }, { pattern: '**/*.{jsonl,ndjson}' }];
 
 export function activate(context: vscode.ExtensionContext): void {
   const t0 = performance.now();
