@@ -279,7 +279,7 @@ export async function runHostileBench(opts: HostileBenchOptions = {}): Promise<s
   }
   if (notes.length) lines.push('Notes:', '', ...notes.map((n) => `- ${n}`), '');
   lines.push(
-    'Growth exponent k = log(t₁₀₀ₖ / t₁₀ₖ) / log 10: 1 is linear, n log n gives ≈ 1.1 over this range, 2 is quadratic.',
+    'Growth exponent k = log(t_b / t_a) / log(b / a) for the last two sizes a < b: 1 is linear, 2 quadratic; n log n gives ≈ 1.1 from 10,000 to 100,000.',
     '"ids = tiktoken": "(stored)" compares with hashes produced by test/fixtures/tokens/make-hostile-reference.ts running the tiktoken WASM bindings.',
   );
   return lines.join('\n');
