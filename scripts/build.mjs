@@ -13,6 +13,8 @@ const nodeTargets = [
   { entryPoints: ['extension/cli/gen.ts'], outfile: 'dist/gen.js' },
   { entryPoints: ['scripts/bench.ts'], outfile: 'dist/bench.js' },
   { entryPoints: ['extension/core/tokens/countWorker.ts'], outfile: 'dist/countWorker.js' },
+  // The parallel audit's worker threads (extension/core/audit/parallel.ts).
+  { entryPoints: ['extension/core/audit/worker.ts'], outfile: 'dist/auditWorker.js' },
 ].filter((t) => existsSync(t.entryPoints[0]));
 
 await mkdir('dist/webview', { recursive: true });

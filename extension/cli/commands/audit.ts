@@ -1,12 +1,15 @@
 /** `spillway audit <log>`: the per-turn ledger as text, JSON (`spillway.audit/1`) or HTML. */
 import type { Command } from 'commander';
 import { auditItems } from '../../core/audit/audit';
+import { auditLinesParallel, PARALLEL_MIN_BYTES } from '../../core/audit/parallel';
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
 import { readLog, readLogLines, type ReadOptions } from '../../core/log/reader';
 import { detectFormat } from '../../core/import/detect';
 import { importedLogItems } from '../../core/import/index';
 import { renderHtmlReport } from '../../core/audit/html';
 import { formatAnalysisSummary, formatSummary, formatTable, TEXT_COLUMNS, textRow } from '../../core/audit/text';
-import type { AuditOptions, AuditReport, Ledger } from '../../core/audit/types';
+import type { AuditOptions, AuditReport } from '../../core/audit/types';
 import { isEncodingName, ENCODINGS } from '../../core/tokens/encoder';
 import { parsePlan, PlanError } from '../../core/pack/plans';
 import { atomicWriter, EXIT, headLines, openLog, parseTokens, stdoutWriter, UsageError, type AtomicWriter } from '../io';
@@ -61,7 +64,24 @@ async function logItems(file: string, from: string | undefined, chunks: AsyncIte
   return importedLogItems(readLogLines(chunks, read), format as 'chat' | 'otlp');
 }
 
-function auditStream(file: string, from: string | undefined, chunks: AsyncIterable<Uint8Array>, opts: Parameters<typeof auditItems>[1], ctx: Parameters<typeof auditItems>[2] = {}) {
+/**
+ * Worker threads for a log of `size` bytes: 0 (single thread) below PARALLEL_MIN_BYTES, else the default.
+ * SPILLWAY_AUDIT_WORKERS=n forces n workers (0: single thread) whatever the size.
+ */
+function auditWorkers(size: number): number | undefined {
+  const env = process.env['SPILLWAY_AUDIT_WORKERS'];
+  if (env !== undefined && env !== '' && Number.isInteger(Number(env))) return Math.max(0, Number(env)) || 0;
+  return size > PARALLEL_MIN_BYTES ? undefined : 0;
+}
+
+async function auditStream(file: string, from: string | undefined, chunks: AsyncIterable<Uint8Array>, opts: Parameters<typeof auditItems>[1], ctx: Parameters<typeof auditItems>[2] = {}, size = 0) {
+  const workers = auditWorkers(size);
+  const workerScript = join(__dirname, 'auditWorker.js');
+  if (workers !== 0 && (from ?? 'auto') !== 'chat' && (from ?? 'auto') !== 'otlp' && existsSync(workerScript)) {
+    const format = (from ?? 'auto') === 'auto' ? (detectFormat(await headLines(file)) ?? 'spillway') : from;
+    // Identical report to the single-thread path (test/core/audit/parallel.test.ts), on every core.
+    if (format === 'spillway') return auditLinesParallel(readLogLines(chunks, ctx.read), opts, { ...ctx, workerScript, workers });
+  }
   return logItems(file, from, chunks, ctx.read).then((items) => auditItems(items, opts, ctx));
 }
 
@@ -84,16 +104,16 @@ export async function runAudit(file: string, o: AuditCliOptions): Promise<number
         read,
         onProgress,
         analysis,
-        onLedger: (l: Ledger) => {
-          out.push((first ? '' : ',\n') + JSON.stringify(l));
+        onLedgerJson: (json: string) => {
+          out.push((first ? '' : ',\n') + json);
           first = false;
         },
-      });
+      }, size);
       const tail = report.analysisSummary ? `,"analysisSummary":${JSON.stringify(report.analysisSummary)}` : '';
       await out.write(`\n],"errors":${JSON.stringify(report.errors)},"summary":${JSON.stringify(report.summary)}${tail}}\n`);
     } else if (o.format === 'text') {
       const rows: string[][] = [];
-      report = await auditStream(file, o.from, chunks, { ...opts, file }, { read, onProgress, analysis, onLedger: (l) => rows.push(textRow(l)) });
+      report = await auditStream(file, o.from, chunks, { ...opts, file }, { read, onProgress, analysis, onLedger: (l) => rows.push(textRow(l)) }, size);
       const shown = rows.length > TEXT_STREAM_AFTER ? rows.slice(0, TEXT_STREAM_AFTER) : rows;
       await out.write(formatTable(shown, TEXT_COLUMNS) + '\n');
       if (rows.length > shown.length) await out.write(`… ${rows.length - shown.length} more turns (use --format json for all of them)\n`);

@@ -2,7 +2,7 @@
  * Auditing a whole log: records stream through the ledger one at a time; the caller chooses
  * whether to keep them (small logs, editor) or pass them on (CLI on a 1 GB log) via `onLedger`.
  */
-import type { LogIssue } from '../log/types';
+import type { LocatedRecord, LogIssue } from '../log/types';
 import { readLog, readLogText, type ReadItem, type ReadOptions } from '../log/reader';
 import { Accountant } from '../tokens/accountant';
 import { auditRecord, LedgerError } from './ledger';
@@ -20,6 +20,8 @@ export interface AuditContext {
   progressEvery?: number;
   /** Receives each ledger; when given, ledgers are not kept in the report (bounded memory). */
   onLedger?: (ledger: Ledger) => void;
+  /** Receives each ledger as `JSON.stringify(ledger)` (takes precedence over `onLedger`; lets workers serialise). */
+  onLedgerJson?: (json: string) => void;
   read?: ReadOptions;
   /** Keep at most this many issues in the report (the count in the summary stays exact). */
   maxIssues?: number;
@@ -64,51 +66,105 @@ export function summarise(ledgers: readonly Ledger[], errors: readonly LogIssue[
   return b.result();
 }
 
+/** What one reader item becomes: a ledger (with its analysis when asked for) or an issue. */
+export type ItemOutcome = { ledger: Ledger } | { issue: LogIssue };
+
+/** `ctx.analysis` as settings, or undefined when the analysis is off. */
+export function analysisSettingsOf(analysis: AuditContext['analysis']): Partial<AnalysisSettings> | undefined {
+  return analysis === true ? {} : analysis || undefined;
+}
+
+/** Audits one located record (the per-record step both the single-thread and the worker path run). */
+export async function auditOne(item: LocatedRecord, opts: AuditOptions, acct: Accountant, analysisSettings: Partial<AnalysisSettings> | undefined): Promise<ItemOutcome> {
+  let ledger: Ledger;
+  try {
+    ledger = await auditRecord(item, opts, acct);
+  } catch (e) {
+    if (!(e instanceof LedgerError)) throw e;
+    return { issue: { line: item.line, column: 1, code: 'unknown-encoding', message: e.message } };
+  }
+  if (analysisSettings) ledger.analysis = analyseTurn(item.record, ledger, analysisSettings);
+  return { ledger };
+}
+
+/** The fields of a ledger the log summary reads (all a worker needs to send besides the ledger's JSON). */
+export type SummaryFields = Pick<Ledger, 'state' | 'rank1Fate' | 'spill' | 'conversation' | 'analysis'>;
+
+/**
+ * Folds outcomes, in file order, into the report: summary, issues (capped), log-level analysis, ledgers
+ * (kept or passed on). One place, so the single-thread and the parallel audit give identical reports.
+ */
+export class AuditCollector {
+  readonly records: Ledger[] = [];
+  readonly errors: LogIssue[] = [];
+  private readonly summary = new SummaryBuilder();
+  private readonly analyses: AnalysisAccumulator | undefined;
+  private readonly maxIssues: number;
+  private readonly every: number;
+  done = 0;
+
+  constructor(
+    private readonly opts: AuditOptions & { file?: string },
+    private readonly ctx: AuditContext,
+  ) {
+    this.maxIssues = ctx.maxIssues ?? 10_000;
+    this.every = ctx.progressEvery ?? 500;
+    this.analyses = analysisSettingsOf(ctx.analysis) ? new AnalysisAccumulator() : undefined;
+  }
+
+  issue(issue: LogIssue): void {
+    this.summary.addIssue();
+    if (this.errors.length < this.maxIssues) this.errors.push(issue);
+  }
+
+  /** Adds a ledger (or the summary fields of one whose JSON `json` is passed on); true when progress was reported. */
+  ledger(l: SummaryFields, offset: number, full?: Ledger, json?: string): boolean {
+    this.summary.add(l as Ledger);
+    if (this.analyses && l.analysis) this.analyses.add(l.analysis);
+    if (json !== undefined && this.ctx.onLedgerJson) this.ctx.onLedgerJson(json);
+    else if (full) {
+      if (this.ctx.onLedgerJson) this.ctx.onLedgerJson(JSON.stringify(full));
+      else if (this.ctx.onLedger) this.ctx.onLedger(full);
+      else this.records.push(full);
+    }
+    if (++this.done % this.every === 0) {
+      this.ctx.onProgress?.(this.done, offset);
+      return true;
+    }
+    return false;
+  }
+
+  report(): AuditReport {
+    this.ctx.onProgress?.(this.done);
+    const report: AuditReport = { schema: 'spillway.audit/1', file: this.opts.file ?? '', options: pickOptions(this.opts), records: this.records, errors: this.errors, summary: this.summary.result() };
+    if (this.analyses) report.analysisSummary = this.analyses.result();
+    return report;
+  }
+}
+
 /** Audits items from the reader (or any source of located records and issues). */
 export async function auditItems(items: AsyncIterable<ReadItem> | Iterable<ReadItem>, opts: AuditOptions & { file?: string }, ctx: AuditContext = {}): Promise<AuditReport> {
   const acct = ctx.accountant ?? (await Accountant.create());
-  const records: Ledger[] = [];
-  const errors: LogIssue[] = [];
-  const maxIssues = ctx.maxIssues ?? 10_000;
-  const summary = new SummaryBuilder();
-  const every = ctx.progressEvery ?? 500;
-  const analysisSettings = ctx.analysis === true ? {} : ctx.analysis || undefined;
-  const analyses = analysisSettings ? new AnalysisAccumulator() : undefined;
+  const analysisSettings = analysisSettingsOf(ctx.analysis);
   if (analysisSettings) await loadShingleHasher();
-  let done = 0;
+  const collector = new AuditCollector(opts, ctx);
   for await (const item of items) {
     if (ctx.signal?.aborted) throw new AuditCancelled();
     if ('issue' in item) {
-      summary.addIssue();
-      if (errors.length < maxIssues) errors.push(item.issue);
+      collector.issue(item.issue);
       continue;
     }
-    let ledger: Ledger;
-    try {
-      ledger = await auditRecord(item, opts, acct);
-    } catch (e) {
-      if (!(e instanceof LedgerError)) throw e;
-      summary.addIssue();
-      if (errors.length < maxIssues) errors.push({ line: item.line, column: 1, code: 'unknown-encoding', message: e.message });
+    const out = await auditOne(item, opts, acct, analysisSettings);
+    if ('issue' in out) {
+      collector.issue(out.issue);
       continue;
     }
-    summary.add(ledger);
-    if (analyses && analysisSettings) {
-      ledger.analysis = analyseTurn(item.record, ledger, analysisSettings);
-      analyses.add(ledger.analysis);
-    }
-    if (ctx.onLedger) ctx.onLedger(ledger);
-    else records.push(ledger);
-    if (++done % every === 0) {
-      ctx.onProgress?.(done, item.offset);
+    if (collector.ledger(out.ledger, item.offset, out.ledger)) {
       // Let the event loop breathe (editor responsiveness, cancellation).
       await new Promise((r) => setImmediate(r));
     }
   }
-  ctx.onProgress?.(done);
-  const report: AuditReport = { schema: 'spillway.audit/1', file: opts.file ?? '', options: pickOptions(opts), records, errors, summary: summary.result() };
-  if (analyses) report.analysisSummary = analyses.result();
-  return report;
+  return collector.report();
 }
 
 function pickOptions(o: AuditOptions): AuditOptions {
