@@ -8,7 +8,9 @@ const from = (o: Record<string, unknown>) => readEditorSettings((k) => o[k]);
 
 describe('readEditorSettings', () => {
   it('falls back to defaults for missing or ill-typed values', () => {
-    expect(from({})).toEqual({ framing: 'record', checks: ALL_CHECKS, logFilePatterns: [], maxLineLength: DEFAULT_MAX_LINE_LENGTH });
+    expect(from({})).toMatchObject({ framing: 'record', checks: ALL_CHECKS, logFilePatterns: [], maxLineLength: DEFAULT_MAX_LINE_LENGTH });
+    expect(from({}).defaultEncoding).toBeUndefined();
+    expect(from({}).defaultReserve).toBeUndefined();
     expect(from({ defaultReserve: -5, maxLineLength: 0, framing: 'fancy', logFilePatterns: 'x', defaultEncoding: 'fromRecord' })).toEqual(from({}));
   });
   it('reads valid values', () => {
