@@ -54,6 +54,15 @@ describe('virtualised turn list', () => {
     expect(l.element.querySelector('[data-line="5"]')!.getAttribute('aria-selected')).toBe('true');
   });
 
+  it('a row selected before its page arrived becomes the active row', () => {
+    const { l } = list();
+    l.setTotal(500);
+    l.setSelected(3);
+    l.setPage(0, 500, rows(0, PAGE_SIZE));
+    expect(l.element.getAttribute('aria-activedescendant')).toBe('turn-opt-2');
+    expect(l.element.querySelector('[data-line="3"]')!.getAttribute('aria-selected')).toBe('true');
+  });
+
   it('keeps at most MAX_PAGES pages', () => {
     const { l } = list();
     l.setTotal(100_000);

@@ -11,6 +11,7 @@ import { budgetBar } from './budget';
 import { renderBudgetBar, renderBudgetTable } from './budgetView';
 import { renderSegmentTable, type SortState } from './segmentTable';
 import { renderPassage } from './passageView';
+import { renderGrounding } from './groundingView';
 import { renderTimeline } from './timeline';
 import { renderOverview } from './overview';
 import { TurnList } from './turnList';
@@ -280,6 +281,7 @@ export class PanelApp {
         section('Budget', 'h-budget', renderBudgetBar(bar), renderBudgetTable(bar)),
         section('Segments', 'h-segments', h('p', { class: 'muted' }, `${d.segments.length} segments · ${r.clipped} clipped · ${r.dropped} dropped · ${int(d.spill)} tokens spilled`), this.slots.table),
         section('Segment text', 'h-text', this.boundaryToggle, this.slots.text),
+        d.grounding ? renderGrounding({ grounding: d.grounding, onSelect: (id) => this.showSegmentText(id) }) : null,
         section('Conversation', 'h-conversation', this.slots.conv),
         notes.length ? section('Notes', 'h-notes', ...notes) : null,
       );
@@ -328,6 +330,12 @@ export class PanelApp {
       setChildren(slots.conv, conv ? renderTimeline({ conversation: r.conversation, rows: conv, selectedLine: r.line, onSelect: (line) => this.selectTurn(line, true) }) : h('p', { class: 'muted' }, 'Loading the conversation…'));
     if (focusedId) Array.from(this.turnBody.querySelectorAll<HTMLElement>('tr[data-id]')).find((tr) => tr.dataset.id === focusedId)?.focus();
     if (focusedTimeline) this.turnBody.querySelector<SVGGElement>('g.tl-turn[tabindex="0"]')?.focus();
+  }
+
+  /** A passage picked in the grounding section: select it and bring its cut view into sight. */
+  private showSegmentText(id: string): void {
+    this.selectSegment(id, true);
+    this.slots?.text.scrollIntoView?.({ block: 'nearest' });
   }
 
   private resort(sort: SortState): void {

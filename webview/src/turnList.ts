@@ -59,6 +59,9 @@ export class TurnList {
     this.pending.delete(p);
     this.pages.set(p, rows);
     this.version++;
+    // The selected turn may arrive after it was selected: keyboard movement starts from it.
+    const sel = rows.findIndex((r) => r.line === this.selectedLine);
+    if (sel >= 0) this.active = p * PAGE_SIZE + sel;
     this.evict(p);
     this.render();
   }
