@@ -23,6 +23,8 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
   private ready = false;
   /** Record line most recently selected (by the panel or the editor cursor); keeps both ends in step. */
   private selectedLine: number | undefined;
+  /** A turn asked for before the panel was ready (CodeLens click, restored panel state). */
+  private pendingLine: number | undefined;
   /** Log last announced to the webview, with its audit, so re-audits re-announce. */
   private announced: { session: LogSession; log: unknown } | undefined;
   private readonly disposables: vscode.Disposable[] = [];
@@ -66,7 +68,10 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
 
   /** Opens the panel; with a line, on that turn. */
   async show(line?: number): Promise<void> {
-    if (line !== undefined) this.selectedLine = line;
+    if (line !== undefined) {
+      this.selectedLine = line;
+      if (!this.ready) this.pendingLine = line;
+    }
     await vscode.commands.executeCommand(`${PANEL_VIEW_ID}.focus`);
     if (line !== undefined && this.ready) this.post({ type: 'selectTurn', line });
   }
@@ -115,7 +120,8 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
     if (this.announced?.session === s && this.announced.log === s.log) return;
     const sameLog = this.announced?.session === s;
     this.announced = { session: s, log: s.log };
-    if (!sameLog) this.selectedLine = this.cursorRecordLine(s) ?? undefined;
+    if (!sameLog) this.selectedLine = this.pendingLine ?? this.cursorRecordLine(s) ?? undefined;
+    this.pendingLine = undefined;
     const selectLine = this.selectedLine !== undefined && recordAtLine(s.log, this.selectedLine) ? this.selectedLine : undefined;
     this.post({ type: 'logOpened', file: s.file, turns: s.log.records.length, ...(selectLine !== undefined ? { selectLine } : {}) });
   }
@@ -159,7 +165,8 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
       case 'ready': {
         this.ready = true;
         this.announced = undefined;
-        if (m.state?.line !== undefined && this.selectedLine === undefined) this.selectedLine = m.state.line;
+        // A CodeLens click that opened the panel wins over the turn the panel shows when restored.
+        this.pendingLine ??= m.state?.line;
         if (!s) this.post({ type: 'logClosed' });
         this.announce();
         return;
