@@ -3,6 +3,7 @@ import * as vscode from 'vscode';
 import { recordAtLine } from '../core/view/audited';
 import { codeLensTitle, codeLensTooltip, logSummary, statusText, statusTooltip } from '../core/view/codeLens';
 import { issueDiagnostic, logDiagnostics, onlyLooksLikeLog, recordDiagnostics, type DiagnosticDescriptor } from '../core/view/diagnostics';
+import { groundingDiagnostics } from '../core/view/grounding';
 import { segmentHoverRows } from '../core/view/hover';
 import { charForRawColumn, locateRecordLine } from '../core/view/recordLine';
 import type { ActiveLog } from './activeLog';
@@ -117,6 +118,7 @@ export class LogDiagnostics implements vscode.Disposable {
         const diag = new vscode.Diagnostic(new vscode.Range(d.line - 1, d.start, d.line - 1, d.end), d.message, SEVERITY[d.severity]);
         diag.code = d.code;
         diag.source = 'Spillway';
+        if (d.related) diag.relatedInformation = d.related.map((r) => new vscode.DiagnosticRelatedInformation(new vscode.Location(doc.uri, new vscode.Range(r.line - 1, r.start, r.line - 1, r.end)), r.message));
         out.push(diag);
       }
     };
@@ -131,7 +133,10 @@ export class LogDiagnostics implements vscode.Disposable {
           slice = performance.now();
         }
         const text = lineText(rec.line);
-        if (text !== undefined) add(recordDiagnostics(rec, text, checks));
+        if (text !== undefined) {
+          add(recordDiagnostics(rec, text, checks));
+          add(groundingDiagnostics(rec, text, checks));
+        }
       }
     }
     if (this.generation.get(key) === gen) this.collection.set(doc.uri, out);

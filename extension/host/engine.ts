@@ -12,3 +12,5 @@ export { renderHtmlReport, PRIVACY_NOTICE } from '../core/audit/html';
 export { parseRecordLine, readLog, readLogText } from '../core/log/reader';
 export { convertText } from '../core/import/index';
 export { detectFormat } from '../core/import/detect';
+// Reply grounding (core/view/grounding.ts reads its results; `words` decides what lies after a cut).
+export { analyseTurn, loadShingleHasher, words } from '../core/analysis/index';

@@ -7,6 +7,7 @@ import * as vscode from 'vscode';
 import { ActiveLog } from './activeLog';
 import { registerCommands } from './commands';
 import { LogDiagnostics, LogStatusBar, RecordCodeLenses, SegmentHover } from './editorFeatures';
+import { GroundingHover } from './groundingHover';
 import { watchLargeLogs } from './largeLogs';
 import { disposeOutput, output } from './output';
 import { PANEL_VIEW_ID, PanelProvider } from './panel';
@@ -39,6 +40,7 @@ export function activate(context: vscode.ExtensionContext): void {
     vscode.languages.registerHoverProvider(SELECTOR, new SegmentHover(sessions)),
     vscode.window.registerWebviewViewProvider(PANEL_VIEW_ID, panel),
     sessions.onDidUpdate((s) => {
+    vscode.languages.registerHoverProvider(SELECTOR, new GroundingHover(sessions)),
       void diagnostics.update(s);
       lenses.refresh();
       if (s === active.session) status.update(active);

@@ -182,7 +182,7 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
         const rec = recordAtLine(log, m.line);
         if (!rec) return this.post({ type: 'error', requestId: m.requestId, message: `Line ${m.line} holds no audited record.` });
         this.selectedLine = m.line;
-        this.post({ type: 'turn', requestId: m.requestId, detail: toTurnDetail(rec) });
+        this.post({ type: 'turn', requestId: m.requestId, detail: toTurnDetail(rec, loadEngine().words) });
         return;
       }
       case 'requestConversation': {

@@ -146,7 +146,14 @@ export class LogSession {
     const settings = this.owner.settings;
     const opts = auditOptionsFor(settings, this.owner.overrides(this.doc.uri));
     const acct = await sharedAccountant();
-    const { auditRecord, convertText, parseRecordLine, encodingForModel } = loadEngine();
+    const { auditRecord, convertText, parseRecordLine, encodingForModel, analyseTurn, loadShingleHasher } = loadEngine();
+    // Reply grounding (spillway.grounding.*): per record, so the incremental cache keeps it with the ledger.
+    const grounding = settings.grounding.enabled ? settings.grounding.analysis : undefined;
+    if (grounding) await loadShingleHasher();
+    const analysed = (record: AuditedRecord['record'], ledger: AuditedRecord['ledger']): AuditedRecord['ledger'] => {
+      if (grounding) ledger.analysis = analyseTurn(record, ledger, grounding);
+      return ledger;
+    };
     if (this.format !== 'spillway') {
       // Chat / OTLP logs: converted in memory, never written; the accountant's memo keeps re-audits cheap.
       const converted = convertText(this.doc.getText(), this.format, importOptions());
@@ -156,7 +163,7 @@ export class LogSession {
       for (const located of converted.records) {
         if (signal.aborted) throw new Cancelled();
         try {
-          const ledger = await auditRecord({ ...located, record: withSettingDefaults(located.record, settings, encodingForModel) }, opts, acct);
+          const ledger = analysed(located.record, await auditRecord({ ...located, record: withSettingDefaults(located.record, settings, encodingForModel) }, opts, acct));
           records.push({ line: located.line, record: located.record, ledger });
         } catch (e) {
           issues.push({ line: located.line, column: 1, code: 'audit-failed', message: e instanceof Error ? e.message : String(e) });
@@ -172,7 +179,7 @@ export class LogSession {
     }
     this.auditor ??= new IncrementalAuditor({
       parse: parseRecordLine,
-      audit: (located) => auditRecord({ ...located, record: withSettingDefaults(located.record, settings, encodingForModel) }, opts, acct),
+      audit: async (located) => analysed(located.record, await auditRecord({ ...located, record: withSettingDefaults(located.record, settings, encodingForModel) }, opts, acct)),
       maxLineLength: settings.maxLineLength,
     });
     return this.auditor.run(new DocumentLines(this.doc), this.file, { signal, onProgress });

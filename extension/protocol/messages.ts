@@ -7,6 +7,7 @@
  */
 import type { Fate, SegmentKind, Role } from '../core/log/types';
 import type { CutPoint, KindTotals, TurnState } from '../core/audit/types';
+import type { GroundingView } from './grounding';
 
 /** One row of the paged turn list / timeline. Small: the panel may hold thousands. */
 export interface TurnRow {
@@ -63,6 +64,8 @@ export interface TurnDetail {
 }
 
 export interface LogOverview {
+  /** Reply grounding (protocol/grounding.ts), when the audit ran the analysis. */
+  grounding?: GroundingView;
   file: string;
   turns: number;
   conversations: number;

@@ -6,6 +6,7 @@
  * messages.ts without a validator here fails the typecheck.
  */
 import type { HostMessage, HostMessageType, PanelState, WebviewMessage, WebviewMessageType } from './messages';
+import { checkGroundingView } from './grounding';
 
 export type Parsed<T> = { ok: true; message: T } | { ok: false; error: string };
 
@@ -76,8 +77,10 @@ const num: Check = (v) => typeof v === 'number' && Number.isFinite(v);
 const hostValidators: { [K in HostMessageType]: (v: Obj) => string | undefined } = {
   logOpened: (v) => shape(v, { type: type('logOpened'), file: str, turns: int(0, LIMITS.maxLine) }, { selectLine: line }),
   logClosed: (v) => shape(v, { type: type('logClosed') }),
+/** The one payload checked in depth: the grounding view carries untrusted sentence texts. */
+const groundingProblem = (g: unknown): string | undefined => (g === undefined ? undefined : checkGroundingView(g));
   turns: (v) => shape(v, { type: type('turns'), requestId, offset: int(0, LIMITS.maxLine), total: int(0, LIMITS.maxLine), rows: arr }),
-  turn: (v) => shape(v, { type: type('turn'), requestId, detail: obj }),
+  turn: (v) => shape(v, { type: type('turn'), requestId, detail: obj }) ?? groundingProblem((v.detail as Obj).grounding),
   conversation: (v) => shape(v, { type: type('conversation'), requestId, conversation: str, rows: arr }),
   overview: (v) => shape(v, { type: type('overview'), requestId, overview: obj }),
   tokenBoundaries: (v) => shape(v, { type: type('tokenBoundaries'), requestId, line, segmentId: str, boundaries: arr }),

@@ -17,6 +17,13 @@ export const DIAGNOSTIC_CODES = [
   'spillway.rank1-dropped',
   'spillway.evidence-lost',
   'spillway.usage-drift',
+  // Grounding (core/view/grounding.ts)
+  'spillway.unsupported-sentence',
+  'spillway.evidence-lost-to-budget',
+  'spillway.lexical-mismatch',
+  'spillway.near-duplicates',
+  'spillway.middle-position',
+  'spillway.stale-passage',
 ] as const;
 export type DiagnosticCode = (typeof DIAGNOSTIC_CODES)[number];
 
@@ -29,6 +36,8 @@ export interface DiagnosticDescriptor {
   severity: 'error' | 'warning' | 'information';
   code: DiagnosticCode;
   message: string;
+  /** Other places on the same document the problem relates to (e.g. the passage that holds the words). */
+  related?: Array<{ line: number; start: number; end: number; message: string }>;
 }
 
 /** Reads a line's text (1-based line); undefined past the end. */

@@ -17,6 +17,13 @@ export interface Checks {
   usageDrift: boolean;
   /** |reported − counted| prompt tokens tolerated before `usage-drift` fires. */
   usageDriftTolerance: number;
+  // Grounding checks (read `ledger.analysis`; see core/view/grounding.ts).
+  unsupportedSentence: boolean;
+  evidenceLostToBudget: boolean;
+  lexicalMismatch: boolean;
+  nearDuplicates: boolean;
+  middlePosition: boolean;
+  stalePassage: boolean;
 }
 
 export const ALL_CHECKS: Checks = {
@@ -27,6 +34,12 @@ export const ALL_CHECKS: Checks = {
   evidenceLost: true,
   usageDrift: true,
   usageDriftTolerance: 0,
+  unsupportedSentence: true,
+  evidenceLostToBudget: true,
+  lexicalMismatch: true,
+  nearDuplicates: true,
+  middlePosition: true,
+  stalePassage: true,
 };
 
 /** The best-ranked passage (lowest `rank`; the first passage when none is ranked). */
@@ -71,6 +84,9 @@ export function problemReasons(rec: Pick<AuditedRecord, 'record' | 'ledger'>, ch
   if (checks.rank1Dropped && ledger.rank1Fate === 'dropped') out.push('rank-1 passage dropped');
   if (checks.evidenceLost && lostEvidence(record, ledger).length > 0) out.push('evidence lost');
   if (checks.usageDrift && ledger.usage && Math.abs(ledger.usage.drift) > checks.usageDriftTolerance) out.push('usage drift');
+  // Of the grounding checks only the sentence ones make a problem turn (the passage notes are information).
+  if (checks.unsupportedSentence && ledger.analysis && ledger.analysis.counts.unsupported > 0) out.push('unsupported sentence');
+  if (checks.evidenceLostToBudget && ledger.analysis && ledger.analysis.counts.lost > 0) out.push('evidence lost to the budget');
   return out;
 }
 

@@ -5,6 +5,7 @@
 import type { AuditOptions } from '../audit/types';
 import type { FramingSpec, LogRecord } from '../log/types';
 import { ALL_CHECKS, type Checks } from './problems';
+import { readGroundingSettings, type GroundingSettings } from './grounding';
 
 export interface EditorSettings {
   /** Encoding for records that name none and whose model name maps to none (checked by the ledger). */
@@ -16,6 +17,8 @@ export interface EditorSettings {
   checks: Checks;
   logFilePatterns: string[];
   maxLineLength: number;
+  /** `spillway.grounding.*`: whether the audit runs the grounding analysis, and its thresholds. */
+  grounding: GroundingSettings;
 }
 
 /** Per-file choices made with the "Change Budget, Reserve or Encoding" command. */
@@ -61,6 +64,7 @@ export function readEditorSettings(get: (key: string) => unknown): EditorSetting
     checks,
     logFilePatterns: Array.isArray(patterns) ? patterns.filter((p): p is string => typeof p === 'string' && p.length > 0) : [],
     maxLineLength: isCount(max) && max > 0 ? max : DEFAULT_MAX_LINE_LENGTH,
+    grounding: readGroundingSettings(get),
   };
   if (typeof enc === 'string' && enc !== '' && enc !== 'fromRecord') s.defaultEncoding = enc;
   if (isCount(reserve)) s.defaultReserve = reserve;

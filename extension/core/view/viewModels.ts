@@ -6,6 +6,7 @@ import type { Ledger } from '../audit/types';
 import type { LogRecord } from '../log/types';
 import type { LogOverview, SegmentView, TurnDetail, TurnRow } from '../../protocol/messages';
 import type { AuditedLog, AuditedRecord } from './audited';
+import { toGroundingView } from './grounding';
 
 export const MAX_PAGE = 500;
 export const MAX_CONVERSATION_ROWS = 5000;
@@ -42,7 +43,8 @@ function str(v: unknown): string | undefined {
   return typeof v === 'string' ? v : undefined;
 }
 
-export function toTurnDetail(rec: Pick<AuditedRecord, 'record' | 'ledger'>): TurnDetail {
+/** `wordsOf`: the analysis' word tokenizer, for the grounding view (see toGroundingView). */
+export function toTurnDetail(rec: Pick<AuditedRecord, 'record' | 'ledger'>, wordsOf?: (text: string) => string[]): TurnDetail {
   const { ledger, record } = rec;
   const byId = new Map<string, LogRecord['segments'][number]>();
   for (const s of record.segments) if (!byId.has(s.id)) byId.set(s.id, s);
@@ -83,6 +85,7 @@ export function toTurnDetail(rec: Pick<AuditedRecord, 'record' | 'ledger'>): Tur
   };
   if (ledger.usage) detail.usage = { ...ledger.usage };
   if (typeof record.reply === 'string') detail.reply = record.reply;
+  if (ledger.analysis) detail.grounding = toGroundingView(ledger.analysis, record, ledger, wordsOf);
   return detail;
 }
 
