@@ -85,6 +85,7 @@ async function packageVsix(): Promise<string> {
 
 async function main(): Promise<number> {
   const t0 = Date.now();
+  await rm(scratch, { recursive: true, force: true });
   await mkdir(scratch, { recursive: true });
   const results: Result[] = [];
   let server: Server | undefined;
@@ -143,9 +144,10 @@ async function main(): Promise<number> {
       try {
         frameUrl = req.frame().url();
       } catch {
-        frameUrl = '(service worker)';
+        // Requests of a service worker have no frame; VS Code's webviews load resources through one.
+        frameUrl = `(service worker ${req.serviceWorker()?.url() ?? ''})`;
       }
-      ctx.requests.push({ url: req.url(), frameUrl, fromWebview: /\/webview\/|webview/i.test(frameUrl) });
+      ctx.requests.push({ url: req.url(), frameUrl, fromWebview: /webview/i.test(frameUrl) });
     });
     page.on('console', (m) => ctx.console.push({ type: m.type(), text: m.text(), url: m.location().url }));
     page.on('pageerror', (e) => ctx.pageErrors.push(`${e.message}\n${e.stack ?? ''}`));
@@ -163,7 +165,7 @@ async function main(): Promise<number> {
       let status: Status = 'passed';
       let detail = '';
       try {
-        await withTimeout(s.run(ctx), 240_000, s.id);
+        await withTimeout(s.run(ctx), 300_000, s.id);
       } catch (e) {
         if (e instanceof Skip) {
           status = 'skipped';
@@ -181,6 +183,7 @@ async function main(): Promise<number> {
     }
 
     // Errors from our extension anywhere in the extension host logs fail the run.
+    await writeFile(join(scratch, 'requests.json'), JSON.stringify(ctx.requests, null, 1));
     const findings = await ourErrors(server.userDataDir);
     const webErrors = ctx.pageErrors.filter((e) => e.includes('spillway'));
     const hostConsole = ctx.console.filter((m) => m.type === 'error' && m.text.includes('spillway-dev.spillway'));

@@ -57,10 +57,12 @@ export const payloads = {
       assert(dialogs.length === 0, `a payload opened a dialog: ${dialogs.join(', ')}`);
       const consoleHits = ctx.console.slice(firstConsole).filter((m) => /__spillwayPwned|Content Security Policy|Refused to (execute|load)/i.test(m.text));
       assert(consoleHits.length === 0, `console shows execution or blocked injection: ${consoleHits.map((m) => m.text).join(' | ').slice(0, 800)}`);
+      // Every request any webview frame (or its resource service worker) made during the whole run.
       const origin = new URL(ctx.server.url).origin;
-      const reqs = ctx.requests.slice(firstRequest).filter((q) => q.fromWebview);
-      const remote = reqs.filter((q) => !q.url.startsWith(origin) && !q.url.startsWith('data:') && !q.url.startsWith('blob:'));
-      const payloadFetch = reqs.filter((q) => /\/x(\?|$)/.test(q.url));
+      const reqs = ctx.requests.filter((q) => q.fromWebview);
+      assert(reqs.some((q) => /webview\/main\.js/.test(q.url)), `the request log holds no load of the panel's own script: the webview request check would be blind (${reqs.length} webview requests)`);
+      const remote = reqs.filter((q) => !q.url.startsWith(origin) && !/^(data|blob):/.test(q.url));
+      const payloadFetch = ctx.requests.slice(firstRequest).filter((q) => /\/x(\?|$)/.test(q.url));
       assert(remote.length === 0, `webview requested outside ${origin}: ${remote.map((q) => q.url).join(', ')}`);
       assert(payloadFetch.length === 0, `a payload's <img src=x> was fetched: ${payloadFetch.map((q) => q.url).join(', ')}`);
       ctx.log(`${checkedPassages} payload segments shown as text over ${Math.min(4, report.records.length)} turns; ${reqs.length} webview requests, all to ${origin}`);

@@ -24,11 +24,14 @@ export const reload = {
     await waitForWorkbench(ctx.page);
     // The panel restores itself (webview view state); do not open it again before looking.
     try {
-      frame = await panelFrame(ctx, 45_000);
+      // Generous: on a loaded 2-core machine the new extension host has taken over 70 s to start.
+      frame = await panelFrame(ctx, 150_000);
     } catch {
-      throw new Error('after reload the panel did not come back by itself');
+      await ctx.page.screenshot({ path: `${ctx.artifacts}/tmp/failed-6-reload-state.png` }).catch(() => undefined);
+      const frames = ctx.page.frames().map((f) => f.url().slice(0, 120));
+      throw new Error(`after reload the panel did not come back by itself; frames: ${frames.join(' , ')}`);
     }
-    await waitPanelTurn(frame, want, 30_000);
+    await waitPanelTurn(frame, want, 60_000);
     const selectedRowLine = await frame.locator('.turn-row[aria-selected="true"]').first().getAttribute('data-line').catch(() => null);
     assert(selectedRowLine === null || Number(selectedRowLine) === r.line, `turn list selects line ${selectedRowLine}, expected ${r.line}`);
     ctx.log(`after reload the panel shows line ${r.line} (${r.conversation} turn ${r.turn})`);
