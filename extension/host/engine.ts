@@ -14,3 +14,7 @@ export { convertText } from '../core/import/index';
 export { detectFormat } from '../core/import/detect';
 // Reply grounding (core/view/grounding.ts reads its results; `words` decides what lies after a cut).
 export { analyseTurn, loadShingleHasher, words } from '../core/analysis/index';
+// Re-pack, compare and sweep (extension/host/repack.ts).
+export { readLogForRepack, repackLines, RepackCancelled, ComparisonTotalsBuilder, sweep, SweepCancelled, parsePrices } from '../core/repack/index';
+export { parsePlan, PlanError } from '../core/pack/plans';
+export { PLAN_CHOICES } from '../core/pack/plans/index';

@@ -12,6 +12,7 @@ import { watchLargeLogs } from './largeLogs';
 import { disposeOutput, output } from './output';
 import { PANEL_VIEW_ID, PanelProvider } from './panel';
 import { LogSessions } from './sessions';
+import { registerRepackCommands, RepackResults } from './repack';
 
 /** When this module's body runs, every other module of the bundle has been evaluated. */
 const bundleEvaluated = performance.now();
@@ -28,6 +29,7 @@ export function activate(context: vscode.ExtensionContext): void {
   const diagnostics = new LogDiagnostics(sessions);
   const status = new LogStatusBar();
   const panel = new PanelProvider(context.extensionUri, sessions, active);
+  const repackResults = new RepackResults();
 
   context.subscriptions.push(
     sessions,
@@ -38,9 +40,9 @@ export function activate(context: vscode.ExtensionContext): void {
     panel,
     vscode.languages.registerCodeLensProvider(SELECTOR, lenses),
     vscode.languages.registerHoverProvider(SELECTOR, new SegmentHover(sessions)),
+    vscode.languages.registerHoverProvider(SELECTOR, new GroundingHover(sessions)),
     vscode.window.registerWebviewViewProvider(PANEL_VIEW_ID, panel),
     sessions.onDidUpdate((s) => {
-    vscode.languages.registerHoverProvider(SELECTOR, new GroundingHover(sessions)),
       void diagnostics.update(s);
       lenses.refresh();
       if (s === active.session) status.update(active);
@@ -51,6 +53,9 @@ export function activate(context: vscode.ExtensionContext): void {
     }),
     active.onDidChange(() => status.update(active)),
     ...registerCommands(sessions, active, panel),
+    repackResults,
+    panel.attachRepack(repackResults),
+    ...registerRepackCommands(sessions, active, panel, repackResults),
     watchLargeLogs('spillway.auditLogToHtml'),
     { dispose: disposeOutput },
   );

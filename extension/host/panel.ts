@@ -15,6 +15,7 @@ import type { ActiveLog } from './activeLog';
 import { loadEngine, sharedAccountant } from './core';
 import { output } from './output';
 import type { LogSession, LogSessions } from './sessions';
+import type { RepackResults } from './repack';
 
 export const PANEL_VIEW_ID = 'spillway.panel';
 
@@ -29,6 +30,8 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
   private announced: { session: LogSession; log: unknown } | undefined;
   private readonly disposables: vscode.Disposable[] = [];
   private viewDisposables: vscode.Disposable[] = [];
+  /** Re-pack comparison and sweep results (extension/host/repack.ts); they answer their own requests. */
+  private repack: RepackResults | undefined;
 
   constructor(
     private readonly extensionUri: vscode.Uri,
@@ -74,6 +77,12 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
     }
     await vscode.commands.executeCommand(`${PANEL_VIEW_ID}.focus`);
     if (line !== undefined && this.ready) this.post({ type: 'selectTurn', line });
+  }
+
+  /** Posts what the re-pack results publish and routes the comparison requests to them. */
+  attachRepack(results: RepackResults): vscode.Disposable {
+    this.repack = results;
+    return results.onDidPublish((m) => this.post(m));
   }
 
   /** Select a turn in the panel without focusing it (used by navigation commands). */
@@ -169,6 +178,7 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
         this.pendingLine ??= m.state?.line;
         if (!s) this.post({ type: 'logClosed' });
         this.announce();
+        for (const r of this.repack?.announcements() ?? []) this.post(r);
         return;
       }
       case 'requestTurns': {
@@ -209,6 +219,12 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
       case 'revealLine': {
         if (!s || !log || !recordAtLine(log, m.line)) return;
         await this.reveal(s, m.line, m.segmentId);
+        return;
+      }
+      case 'requestComparisonPage':
+      case 'requestComparisonTurn': {
+        if (!this.repack) return this.post({ type: 'error', requestId: m.requestId, message: 'No re-pack comparison yet.' });
+        this.post(await this.repack.answer(m));
         return;
       }
       case 'metric': {

@@ -8,6 +8,9 @@
 import type { Fate, SegmentKind, Role } from '../core/log/types';
 import type { CutPoint, KindTotals, TurnState } from '../core/audit/types';
 import type { GroundingView } from './grounding';
+import type { ComparisonRow, ComparisonSummary, ComparisonTurnView, SweepView } from './comparison';
+
+export type * from './comparison';
 
 /** One row of the paged turn list / timeline. Small: the panel may hold thousands. */
 export interface TurnRow {
@@ -61,11 +64,11 @@ export interface TurnDetail {
   notes: string[];
   segments: SegmentView[];
   reply?: string;
+  /** Reply grounding (protocol/grounding.ts), when the audit ran the analysis. */
+  grounding?: GroundingView;
 }
 
 export interface LogOverview {
-  /** Reply grounding (protocol/grounding.ts), when the audit ran the analysis. */
-  grounding?: GroundingView;
   file: string;
   turns: number;
   conversations: number;
@@ -84,7 +87,7 @@ export interface LogOverview {
 export interface PanelState {
   line?: number;
   segmentId?: string;
-  view?: 'turn' | 'overview' | 'compare';
+  view?: 'turn' | 'overview' | 'compare' | 'sweep';
 }
 
 // ---------------------------------------------------------------- webview → host
@@ -97,7 +100,10 @@ export type WebviewMessage =
   | { type: 'requestTokenBoundaries'; requestId: number; line: number; segmentId: string }
   | { type: 'revealLine'; line: number; segmentId?: string }
   /** A measurement from the panel for the host to log (firstPaintMs: script start → first turn view painted). */
-  | { type: 'metric'; name: 'firstPaintMs'; value: number };
+  | { type: 'metric'; name: 'firstPaintMs'; value: number }
+  /** Re-pack comparison (extension/host/repack.ts): a page of the worse-first list, and one turn's two packings. */
+  | { type: 'requestComparisonPage'; requestId: number; offset: number; limit: number }
+  | { type: 'requestComparisonTurn'; requestId: number; line: number };
 
 // ---------------------------------------------------------------- host → webview
 export type HostMessage =
@@ -111,7 +117,13 @@ export type HostMessage =
   /** The editor cursor moved to another record: select it. */
   | { type: 'selectTurn'; line: number }
   | { type: 'progress'; done: number; total?: number; label: string }
-  | { type: 'error'; requestId?: number; message: string };
+  | { type: 'error'; requestId?: number; message: string }
+  /** A re-pack finished: its totals; the list follows page by page on request. `reveal`: switch to the Compare view. */
+  | { type: 'comparisonReady'; summary: ComparisonSummary; reveal: boolean }
+  | { type: 'comparisonPage'; requestId: number; generation: number; offset: number; total: number; rows: ComparisonRow[] }
+  | { type: 'comparisonTurn'; requestId: number; view: ComparisonTurnView }
+  /** A sweep finished: evidence retention and tokens per budget × plan (× k). */
+  | { type: 'sweepReady'; sweep: SweepView; reveal: boolean };
 
 export type WebviewMessageType = WebviewMessage['type'];
 export type HostMessageType = HostMessage['type'];

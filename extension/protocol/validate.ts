@@ -25,7 +25,7 @@ const requestId = int(0, LIMITS.maxRequestId);
 const line = int(1, LIMITS.maxLine);
 
 const panelState: Check = (v) =>
-  shape(v, {}, { line, segmentId: nonEmptyStr, view: oneOf('turn', 'overview', 'compare') }) === undefined;
+  shape(v, {}, { line, segmentId: nonEmptyStr, view: oneOf('turn', 'overview', 'compare', 'sweep') }) === undefined;
 
 /**
  * Checks `v` has exactly the required keys plus any of the optional ones, each passing its check.
@@ -58,6 +58,9 @@ const webviewValidators: { [K in WebviewMessageType]: (v: Obj) => string | undef
   requestTokenBoundaries: (v) => shape(v, { type: type('requestTokenBoundaries'), requestId, line, segmentId: nonEmptyStr }),
   revealLine: (v) => shape(v, { type: type('revealLine'), line }, { segmentId: nonEmptyStr }),
   metric: (v) => shape(v, { type: type('metric'), name: oneOf('firstPaintMs'), value: (x) => typeof x === 'number' && Number.isFinite(x) && x >= 0 }),
+  requestComparisonPage: (v) =>
+    shape(v, { type: type('requestComparisonPage'), requestId, offset: int(0, LIMITS.maxLine), limit: int(1, LIMITS.maxLimit) }),
+  requestComparisonTurn: (v) => shape(v, { type: type('requestComparisonTurn'), requestId, line }),
 };
 
 export function parseWebviewMessage(v: unknown): Parsed<WebviewMessage> {
@@ -74,11 +77,12 @@ export function parseWebviewMessage(v: unknown): Parsed<WebviewMessage> {
 const arr: Check = (v) => Array.isArray(v);
 const obj: Check = (v) => isObj(v);
 const num: Check = (v) => typeof v === 'number' && Number.isFinite(v);
+const bool: Check = (v) => typeof v === 'boolean';
+/** The one payload checked in depth: the grounding view carries untrusted sentence texts. */
+const groundingProblem = (g: unknown): string | undefined => (g === undefined ? undefined : checkGroundingView(g));
 const hostValidators: { [K in HostMessageType]: (v: Obj) => string | undefined } = {
   logOpened: (v) => shape(v, { type: type('logOpened'), file: str, turns: int(0, LIMITS.maxLine) }, { selectLine: line }),
   logClosed: (v) => shape(v, { type: type('logClosed') }),
-/** The one payload checked in depth: the grounding view carries untrusted sentence texts. */
-const groundingProblem = (g: unknown): string | undefined => (g === undefined ? undefined : checkGroundingView(g));
   turns: (v) => shape(v, { type: type('turns'), requestId, offset: int(0, LIMITS.maxLine), total: int(0, LIMITS.maxLine), rows: arr }),
   turn: (v) => shape(v, { type: type('turn'), requestId, detail: obj }) ?? groundingProblem((v.detail as Obj).grounding),
   conversation: (v) => shape(v, { type: type('conversation'), requestId, conversation: str, rows: arr }),
@@ -87,6 +91,11 @@ const groundingProblem = (g: unknown): string | undefined => (g === undefined ? 
   selectTurn: (v) => shape(v, { type: type('selectTurn'), line }),
   progress: (v) => shape(v, { type: type('progress'), done: num, label: str }, { total: num }),
   error: (v) => shape(v, { type: type('error'), message: str }, { requestId }),
+  comparisonReady: (v) => shape(v, { type: type('comparisonReady'), summary: obj, reveal: bool }),
+  comparisonPage: (v) =>
+    shape(v, { type: type('comparisonPage'), requestId, generation: int(0, LIMITS.maxRequestId), offset: int(0, LIMITS.maxLine), total: int(0, LIMITS.maxLine), rows: arr }),
+  comparisonTurn: (v) => shape(v, { type: type('comparisonTurn'), requestId, view: obj }),
+  sweepReady: (v) => shape(v, { type: type('sweepReady'), sweep: obj, reveal: bool }),
 };
 
 export function parseHostMessage(v: unknown): Parsed<HostMessage> {

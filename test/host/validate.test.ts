@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { HostMessage, WebviewMessage } from '../../extension/protocol/messages';
 import { LIMITS, parseHostMessage, parseWebviewMessage } from '../../extension/protocol/validate';
+import { COMPARISON_HOST_EXAMPLES, COMPARISON_WEBVIEW_EXAMPLES } from './repackFixtures';
 
 /** One valid example of every webview → host message type (the Record type makes a missing one a type error). */
 const WEBVIEW_EXAMPLES: { [K in WebviewMessage['type']]: Extract<WebviewMessage, { type: K }>[] } = {
@@ -12,6 +13,7 @@ const WEBVIEW_EXAMPLES: { [K in WebviewMessage['type']]: Extract<WebviewMessage,
   requestTokenBoundaries: [{ type: 'requestTokenBoundaries', requestId: 5, line: 7, segmentId: 'p2' }],
   revealLine: [{ type: 'revealLine', line: 7 }, { type: 'revealLine', line: 7, segmentId: 'p2' }],
   metric: [{ type: 'metric', name: 'firstPaintMs', value: 123.4 }],
+  ...COMPARISON_WEBVIEW_EXAMPLES,
 };
 
 const row = { line: 1, conversation: 'c', turn: 1, used: 1, budget: 2, window: 3, reserve: 1, state: 'ok', byKind: { instructions: 0, history: 0, query: 0, passage: 0, tool: 0 }, framing: 0, joins: 0, clipped: 0, dropped: 0 } as const;
@@ -26,6 +28,7 @@ const HOST_EXAMPLES: { [K in HostMessage['type']]: Extract<HostMessage, { type: 
   selectTurn: [{ type: 'selectTurn', line: 4 }],
   progress: [{ type: 'progress', done: 1, label: 'x' }, { type: 'progress', done: 1, total: 2, label: 'x' }],
   error: [{ type: 'error', message: 'x' }, { type: 'error', requestId: 9, message: 'x' }],
+  ...COMPARISON_HOST_EXAMPLES,
 };
 
 describe('parseWebviewMessage', () => {

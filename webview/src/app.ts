@@ -15,12 +15,16 @@ import { renderGrounding } from './groundingView';
 import { renderTimeline } from './timeline';
 import { renderOverview } from './overview';
 import { TurnList } from './turnList';
+import { CompareView } from './compareView';
+import { SweepPanel } from './sweepChart';
 
 type View = NonNullable<PanelState['view']>;
 /** Tabs in order; a view added later (e.g. 'compare') gets its own entry here. */
 const VIEWS: ReadonlyArray<{ id: View; label: string }> = [
   { id: 'turn', label: 'Turn' },
   { id: 'overview', label: 'Log' },
+  { id: 'compare', label: 'Compare' },
+  { id: 'sweep', label: 'Sweep' },
 ];
 const ROW_HEIGHT = 24;
 
@@ -58,6 +62,9 @@ export class PanelApp {
   private readonly turnBody: HTMLElement;
   private readonly overviewBody: HTMLElement;
   readonly list: TurnList;
+  /** Re-pack comparison and sweep views (their own controllers). */
+  readonly compare: CompareView;
+  readonly sweep: SweepPanel;
   /** Kept across renders: replacing the widget while it handles its own click loses the click. */
   private readonly boundaryToggle: HTMLElement & { checked?: boolean };
   /** Containers of the parts of the turn view that are rebuilt on their own. */
@@ -81,7 +88,9 @@ export class PanelApp {
     const logPanel = h('div', {}, this.overviewBody, section('All turns', 'h-all-turns', this.list.element));
 
     this.tabs = h('vscode-tabs', { class: 'tabs', panel: true });
-    const bodies: Record<string, HTMLElement> = { turn: this.turnBody, overview: logPanel };
+    this.compare = new CompareView({ post: (m) => this.post(m), nextId: () => this.id('compare'), reveal: () => this.showView('compare') });
+    this.sweep = new SweepPanel(() => this.showView('sweep'));
+    const bodies: Record<string, HTMLElement> = { turn: this.turnBody, overview: logPanel, compare: this.compare.element, sweep: this.sweep.element };
     for (const v of VIEWS) {
       this.tabs.appendChild(h('vscode-tab-header', { slot: 'header', id: `tab-${v.id}` }, v.label));
       const panel = h('vscode-tab-panel', { 'aria-label': `${v.label} view` }, bodies[v.id] ?? null);
@@ -142,6 +151,7 @@ export class PanelApp {
 
   handle(msg: HostMessage): void {
     if (!msg || typeof msg !== 'object' || typeof (msg as { type?: unknown }).type !== 'string') return;
+    if (this.compare.handle(msg) || this.sweep.handle(msg)) return;
     switch (msg.type) {
       case 'logOpened':
         this.file = msg.file;
