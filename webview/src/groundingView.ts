@@ -40,7 +40,7 @@ function passageButton(id: string, onSelect: (id: string) => void, label?: strin
 
 function supportLine(s: GroundingSentence, onSelect: (id: string) => void): HTMLElement | null {
   const m = s.support;
-  if (s.label === 'skipped') return h('div', { class: 'g-support muted' }, `fewer than the minimum content words (${int(s.contentWords)}); not scored`);
+  if (s.label === 'skipped') return h('div', { class: 'g-support muted' }, `only ${int(s.contentWords)} content word${s.contentWords === 1 ? '' : 's'}, below the minimum: not scored`);
   if (!m) return h('div', { class: 'g-support muted' }, 'no passage shares a content word with it');
   const words = m.overlap.length ? ` · shared words: ${m.overlap.join(', ')}` : '';
   const share = `${int(m.overlap.length)} of ${int(s.contentWords)} content words (${ratioPct(m.share)})`;
