@@ -16,7 +16,7 @@
  * beside every row: on a shared machine, read the ratios (measured minutes apart), not the absolute MB/s.
  */
 import { spawn } from 'node:child_process';
-import { createReadStream, createWriteStream, existsSync, mkdirSync, readFileSync, renameSync, rmSync, statSync } from 'node:fs';
+import { copyFileSync, createReadStream, createWriteStream, existsSync, mkdirSync, readFileSync, renameSync, rmSync, statSync } from 'node:fs';
 import { cpus, loadavg, totalmem, tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { once } from 'node:events';
@@ -24,7 +24,16 @@ import { generateLog } from '../extension/core/sample/generator';
 
 const MB = 1024 * 1024;
 const ROOT = resolve(__dirname, '..');
-const CLI = join(ROOT, 'dist', 'cli.js');
+let CLI = join(ROOT, 'dist', 'cli.js');
+
+/** Copies the CLI bundle and its worker aside, so a rebuild of dist/ during the run cannot change what is measured. */
+function snapshotCli(): void {
+  const dir = join(tmpdir(), `spillway-bench-cli-${process.pid}`);
+  mkdirSync(dir, { recursive: true });
+  for (const f of ['cli.js', 'auditWorker.js']) if (existsSync(join(ROOT, 'dist', f))) copyFileSync(join(ROOT, 'dist', f), join(dir, f));
+  CLI = join(dir, 'cli.js');
+  process.on('exit', () => rmSync(dir, { recursive: true, force: true }));
+}
 const SELF = __filename;
 
 interface Flags {
@@ -144,6 +153,7 @@ async function childNaive(file: string, seconds: number): Promise<ChildResult> {
   let records = 0;
   let bytes = 0;
   let tokens = 0;
+  let chars = 0;
   let complete = true;
   for await (const l of lines(file)) {
     bytes += Buffer.byteLength(l) + 1;
@@ -154,14 +164,17 @@ async function childNaive(file: string, seconds: number): Promise<ChildResult> {
       continue;
     }
     const enc = (r.model.encoding ?? (r.model.name.startsWith('gpt-4o') ? 'o200k_base' : 'cl100k_base')) === 'o200k_base' ? o200k : cl100k;
-    for (const s of r.segments) tokens += enc.countTokens(s.text);
+    for (const s of r.segments) {
+      tokens += enc.countTokens(s.text);
+      chars += s.text.length;
+    }
     records++;
     if (performance.now() - t0 > seconds * 1000) {
       complete = false;
       break;
     }
   }
-  return { ms: performance.now() - t0, bytes, records, extra: { tokens, complete } };
+  return { ms: performance.now() - t0, bytes, records, extra: { tokens, chars, complete } };
 }
 
 /** The memo's hit rate on the single-thread path (one Accountant, in file order). */
@@ -262,6 +275,7 @@ async function main(): Promise<void> {
     process.stdout.write(s + '\n');
   };
   if (!existsSync(CLI)) throw new Error(`${CLI} is missing: run npm run build first`);
+  snapshotCli();
   say(`# spillway bench — ${new Date().toISOString()}`);
   say(`node ${process.version}, ${cpus().length} cores (${cpus()[0]?.model ?? '?'}), ${(totalmem() / 2 ** 30).toFixed(1)} GiB memory, load average at start ${load()}`);
   say(`seed ${flags.seed}; sizes ${flags.sizes.join(', ')} MiB; naive capped at ${flags.naiveSeconds} s per size`);
@@ -276,6 +290,7 @@ async function main(): Promise<void> {
     naive: ChildResult & { rssMb: number };
     audit: Measured;
     auditNoAnalysis: Measured;
+    auditOneThread: Measured;
     load: string;
   }
   const rows: Row[] = [];
@@ -290,23 +305,30 @@ async function main(): Promise<void> {
     const naive = await childMeasure('naive', file, String(flags.naiveSeconds));
     process.stderr.write(`bench: ${mb} MiB: audit --no-analysis…\n`);
     const auditNoAnalysis = await measure([process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']);
+    let auditOneThread: Measured = { ms: NaN, rssMb: NaN, out: '', code: -1 };
+    if (mb < 1000) {
+      process.stderr.write(`bench: ${mb} MiB: audit --no-analysis, one thread…\n`);
+      auditOneThread = await measure(['env', 'SPILLWAY_AUDIT_WORKERS=0', process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']);
+    }
     let audit: Measured = { ms: NaN, rssMb: NaN, out: '', code: -1 };
     if (!(mb >= 1000 && flags.skipAnalysis1gb)) {
       process.stderr.write(`bench: ${mb} MiB: audit (with analysis)…\n`);
       audit = await measure([process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet']);
     }
     rmSync(tmpOut, { force: true });
-    rows.push({ mb, file, bytes, records, floor, naive, audit, auditNoAnalysis, load: load() });
+    rows.push({ mb, file, bytes, records, floor, naive, audit, auditNoAnalysis, auditOneThread, load: load() });
   }
 
   const mbps = (bytes: number, ms: number): number => bytes / MB / (ms / 1000);
   const head = ['log', 'records', 'floor MB/s', 'naive MB/s', 'audit MB/s', 'audit rec/s', 'audit/floor', 'audit/naive', 'RSS floor', 'RSS naive', 'RSS audit', 'load'];
   const body: string[][] = [];
   for (const [label, pick] of [
+    ['--no-analysis, 1 thread', (r: Row) => r.auditOneThread],
     ['--no-analysis', (r: Row) => r.auditNoAnalysis],
     ['with analysis', (r: Row) => r.audit],
   ] as const) {
     for (const r of rows) {
+      if (pick(r).code === -1) continue;
       const a = pick(r);
       const floorMbps = mbps(r.floor.bytes, r.floor.ms);
       const naiveMbps = mbps(r.naive.bytes, r.naive.ms);
@@ -331,6 +353,7 @@ async function main(): Promise<void> {
   say('');
   say(table(head, body));
   say('');
+  say('Audit rows run the CLI (`audit <log> --format json --out <tmp>`): above 8 MiB on worker threads (one per core), \'1 thread\' with SPILLWAY_AUDIT_WORKERS=0.');
   say('`*` naive stopped after the time cap: its MB/s is over the part it read (its cost per byte does not fall with size: no memo).');
   const expNo = exponent(rows.map((r) => ({ size: r.bytes, ms: r.auditNoAnalysis.ms })));
   const expAn = exponent(rows.filter((r) => r.audit.code === 0).map((r) => ({ size: r.bytes, ms: r.audit.ms })));
@@ -390,13 +413,32 @@ async function main(): Promise<void> {
   say('');
   say('## Memo (single-thread path, one Accountant, --no-analysis)');
   const memoRows: string[][] = [];
+  const memoStats: { row: Row; encodedChars: number }[] = [];
   for (const r of rows.filter((x) => x.mb < 1000)) {
     process.stderr.write(`bench: memo on ${r.mb} MiB…\n`);
     const m = await childMeasure('memo', r.file);
     const s = m.extra as { hits: number; misses: number; entries: number; encodedChars: number };
+    memoStats.push({ row: r, encodedChars: s.encodedChars });
     memoRows.push([`${r.mb} MiB`, String(s.hits), String(s.misses), `${f1((100 * s.hits) / (s.hits + s.misses))} %`, String(s.entries), `${f1(s.encodedChars / 1e6)} M`, `${f1(m.ms / 1000)} s`, `${f1(m.rssMb)} MB`]);
   }
   say(table(['log', 'hits', 'misses', 'hit rate', 'entries', 'chars encoded', 'time (1 thread)', 'peak RSS'], memoRows));
+
+  // ------------------------------------------------------------ cost model: what bounds audit/floor
+  const model = memoStats.length ? memoStats[memoStats.length - 1]! : undefined;
+  if (model) {
+    const r = model.row;
+    const bpeCharsPerSec = Number(r.naive.extra?.['chars']) / (r.naive.ms / 1000);
+    const floorSecPerMb = r.floor.ms / 1000 / (r.floor.bytes / MB);
+    const uniquePerMb = model.encodedChars / (r.bytes / MB);
+    const bpeSecPerMb = uniquePerMb / bpeCharsPerSec;
+    const cores = cpus().length;
+    const bound = floorSecPerMb / ((floorSecPerMb + bpeSecPerMb) / cores);
+    say('');
+    say(`## Cost model (${r.mb} MiB log, same run)`);
+    say(`- floor: ${f2(floorSecPerMb)} s per MiB (read + JSON.parse); naive BPE rate ${f2(bpeCharsPerSec / 1e6)} M chars/s (gpt-tokenizer countTokens, no memo).`);
+    say(`- text the memo cannot avoid (first sight of each text, clipped prefixes): ${f1(uniquePerMb / 1e3)} k chars per MiB of log → ${f2(bpeSecPerMb)} s of BPE per MiB.`);
+    say(`- so even an audit that did nothing but parse and count unseen text, perfectly spread over ${cores} cores, reaches at most audit/floor = ${f2(bound)} (validation, packing, cut points, JSON output and the analysis come on top).`);
+  }
 
   // ------------------------------------------------------------ hostile text
   if (flags.hostile) {
