@@ -8,7 +8,7 @@
 import * as vscode from 'vscode';
 import { open as openFile, type FileHandle } from 'node:fs/promises';
 import { randomBytes } from 'node:crypto';
-import { ComparisonCollector, comparisonTurnView, describeRepack, type ComparisonStore } from '../core/view/comparison';
+import { ComparisonCollector, comparisonTurnView, describeRepack, RepackTracker, type ComparisonStore } from '../core/view/comparison';
 import { toTurnDetail } from '../core/view/viewModels';
 import { budgetPrompt, parseTokenInput, parseTokenList, repackOutputName, validateBudgetInput } from '../core/view/repackForm';
 import type { ComparisonSummary, HostMessage, SweepView, WebviewMessage } from '../protocol/messages';
@@ -133,9 +133,6 @@ export class AtomicOutput {
   private pendingBytes = 0;
   private held: Buffer[] = [];
   private done = false;
-  /** Bytes and lines handed to `write` so far. */
-  bytes = 0;
-  lines = 0;
 
   private constructor(
     readonly target: vscode.Uri,
@@ -151,11 +148,8 @@ export class AtomicOutput {
   }
 
   write(line: string): Promise<void> | void {
-    const n = Buffer.byteLength(line);
-    this.bytes += n;
-    this.lines += (line.match(/\n/g) ?? []).length;
     this.pending.push(line);
-    this.pendingBytes += n;
+    this.pendingBytes += line.length;
     if (this.pendingBytes >= 1 << 20) return this.flush();
   }
 
@@ -320,20 +314,16 @@ export async function repackLog(arg: unknown, active: ActiveLog, sessions: LogSe
         const sub = token.onCancellationRequested(() => ac.abort());
         try {
           let reported = 0;
-          let current = { line: 0, offset: 0 };
-          // Remember where the record being packed starts, for the side-by-side view later.
-          async function* located(): AsyncGenerator<ReturnType<typeof engine.readLogForRepack> extends AsyncGenerator<infer T> ? T : never> {
-            for await (const item of engine.readLogForRepack(readChunks(src!.uri))) {
-              if ('record' in item) current = { line: item.line, offset: item.offset };
-              yield item;
-            }
-          }
-          return await engine.repackLines(located(), options, {
+          // Remembers where each record starts in both files, for the side-by-side view later.
+          const tracker = new RepackTracker(collector);
+          return await engine.repackLines(tracker.items(engine.readLogForRepack(readChunks(src.uri))), options, {
             accountant: await sharedAccountant(),
             signal: ac.signal,
-            write: (line) => out.write(line),
-            // Called before the record's new line is written: the output's size is where it starts.
-            onComparison: (c) => collector.add(c, out.lines + 1, { offsetA: current.offset, offsetB: out.bytes }),
+            write: (line) => {
+              tracker.wrote(line);
+              return out.write(line);
+            },
+            onComparison: tracker.onComparison,
             onProgress: (done, bytes) => {
               const pctDone = bytes !== undefined && size > 0 ? (100 * bytes) / size : undefined;
               const inc = pctDone !== undefined ? Math.max(0, pctDone - reported) : undefined;

@@ -145,6 +145,53 @@ export class ComparisonStore {
   }
 }
 
+/** UTF-8 length of a JS string (what the line occupies in the written file). */
+export function utf8Length(s: string): number {
+  let n = 0;
+  for (let i = 0; i < s.length; i++) {
+    const c = s.charCodeAt(i);
+    if (c < 0x80) n += 1;
+    else if (c < 0x800) n += 2;
+    else if (c >= 0xd800 && c <= 0xdbff && i + 1 < s.length && (s.charCodeAt(i + 1) & 0xfc00) === 0xdc00) {
+      n += 4;
+      i++;
+    } else n += 3;
+  }
+  return n;
+}
+
+/**
+ * Ties each comparison the re-pack reports to where its two records sit: the source record being
+ * packed (the reader item last passed through `items`) and the output line about to be written
+ * (`repackLines` reports a record's comparison before writing its new line).
+ */
+export class RepackTracker {
+  /** Bytes and lines written to the output so far. */
+  bytes = 0;
+  lines = 0;
+  private current = { line: 0, offset: 0 };
+
+  constructor(private readonly collector: ComparisonCollector) {}
+
+  async *items<T>(source: AsyncIterable<T>): AsyncGenerator<T> {
+    for await (const item of source) {
+      const located = item as { line?: unknown; offset?: unknown; record?: unknown };
+      if (located.record !== undefined && typeof located.line === 'number' && typeof located.offset === 'number') this.current = { line: located.line, offset: located.offset };
+      yield item;
+    }
+  }
+
+  /** Call with every output line (newline included) as it is written. */
+  wrote(text: string): void {
+    this.bytes += utf8Length(text);
+    for (let i = text.indexOf('\n'); i >= 0; i = text.indexOf('\n', i + 1)) this.lines++;
+  }
+
+  readonly onComparison = (c: TurnComparison): void => {
+    this.collector.add(c, this.lines + 1, { offsetA: this.current.offset, offsetB: this.bytes });
+  };
+}
+
 const sent = (f: SegmentView['fate'] | undefined): boolean => f !== undefined && f !== 'dropped';
 
 /** How segment `mine` (of this side) differs from `other` (the same id on the other side). */
