@@ -82,7 +82,11 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
   /** Posts what the re-pack results publish and routes the comparison requests to them. */
   attachRepack(results: RepackResults): vscode.Disposable {
     this.repack = results;
-    return results.onDidPublish((m) => this.post(m));
+    return results.onDidPublish((m) => {
+      if (!this.view || !this.ready) return; // announced again when the webview says ready
+      this.post(m);
+      results.delivered(m.type);
+    });
   }
 
   /** Select a turn in the panel without focusing it (used by navigation commands). */

@@ -38,6 +38,8 @@ export class RepackResults implements vscode.Disposable {
   private comparison: HeldComparison | undefined;
   private sweep: SweepView | undefined;
   private generation = 0;
+  /** Results not yet shown by a ready panel: the next announcement switches the panel to them. */
+  private readonly revealPending = new Set<'comparisonReady' | 'sweepReady'>();
   private readonly emitter = new vscode.EventEmitter<HostMessage>();
   readonly onDidPublish = this.emitter.event;
 
@@ -47,19 +49,30 @@ export class RepackResults implements vscode.Disposable {
 
   setComparison(c: HeldComparison): void {
     this.comparison = c;
+    this.revealPending.add('comparisonReady');
     this.emitter.fire({ type: 'comparisonReady', summary: c.summary, reveal: true });
   }
 
   setSweep(s: SweepView): void {
     this.sweep = s;
+    this.revealPending.add('sweepReady');
     this.emitter.fire({ type: 'sweepReady', sweep: s, reveal: true });
   }
 
-  /** What a freshly loaded webview is told (without switching its view). */
+  /** The panel posted a published message to a ready webview. */
+  delivered(type: HostMessage['type']): void {
+    if (type === 'comparisonReady' || type === 'sweepReady') this.revealPending.delete(type);
+  }
+
+  /**
+   * What a freshly loaded webview is told: switched to a result only when that result was never
+   * shown (it finished while the panel was closed); a reload otherwise keeps the user's view.
+   */
   announcements(): HostMessage[] {
     const out: HostMessage[] = [];
-    if (this.comparison) out.push({ type: 'comparisonReady', summary: this.comparison.summary, reveal: false });
-    if (this.sweep) out.push({ type: 'sweepReady', sweep: this.sweep, reveal: false });
+    if (this.comparison) out.push({ type: 'comparisonReady', summary: this.comparison.summary, reveal: this.revealPending.has('comparisonReady') });
+    if (this.sweep) out.push({ type: 'sweepReady', sweep: this.sweep, reveal: this.revealPending.has('sweepReady') });
+    this.revealPending.clear();
     return out;
   }
 
