@@ -230,5 +230,9 @@ describe('spillway.grounding.* settings', () => {
     expect(s.checks.stalePassage).toBe(false);
     expect(s.checks.unsupportedSentence).toBe(true);
     expect(s.grounding).toEqual({ enabled: true, analysis: {} });
+    // stalePassage starts off (it would mark nearly every passage of an old knowledge base); the rest on.
+    const d = readEditorSettings(() => undefined).checks;
+    expect([d.stalePassage, d.unsupportedSentence, d.evidenceLostToBudget, d.lexicalMismatch, d.nearDuplicates, d.middlePosition]).toEqual([false, true, true, true, true, true]);
+    expect(readEditorSettings((k) => (k === 'diagnostics.enabled' ? { stalePassage: true } : undefined)).checks.stalePassage).toBe(true);
   });
 });

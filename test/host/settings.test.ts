@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { auditOptionsFor, parseTokenCount, readEditorSettings, validateTokenCount, withSettingDefaults, DEFAULT_MAX_LINE_LENGTH } from '../../extension/core/view/settings';
-import { ALL_CHECKS } from '../../extension/core/view/problems';
+import { DEFAULT_CHECKS as ALL_CHECKS } from '../../extension/core/view/problems'; // the defaults: every check but stalePassage
 import { hasLogExtension, sniffSpillway, firstLines } from '../../extension/core/view/recognise';
 import { record } from './ledgerFixture';
 

@@ -4,7 +4,7 @@
  */
 import type { AuditOptions } from '../audit/types';
 import type { FramingSpec, LogRecord } from '../log/types';
-import { ALL_CHECKS, type Checks } from './problems';
+import { ALL_CHECKS, DEFAULT_CHECKS, type Checks } from './problems';
 import { readGroundingSettings, type GroundingSettings } from './grounding';
 
 export interface EditorSettings {
@@ -47,7 +47,7 @@ export function readEditorSettings(get: (key: string) => unknown): EditorSetting
   const enc = get('defaultEncoding');
   const reserve = get('defaultReserve');
   const checksRaw = get('diagnostics.enabled');
-  const checks: Checks = { ...ALL_CHECKS };
+  const checks: Checks = { ...DEFAULT_CHECKS };
   if (typeof checksRaw === 'object' && checksRaw !== null) {
     for (const k of Object.keys(ALL_CHECKS) as Array<keyof Checks>) {
       const v = (checksRaw as Record<string, unknown>)[k];
