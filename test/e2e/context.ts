@@ -2,7 +2,7 @@
 import { execFile } from 'node:child_process';
 import { promisify } from 'node:util';
 import { readFileSync } from 'node:fs';
-import { join } from 'node:path';
+import { isAbsolute, join } from 'node:path';
 import type { BrowserContext, Page } from 'playwright-core';
 import type { AuditReport } from '../../extension/core/audit/types';
 import type { Server } from './server';
@@ -67,7 +67,7 @@ export function makeAudit(repo: string) {
     const key = [rel, ...extra].join(' ');
     let p = cache.get(key);
     if (!p) {
-      p = run(process.execPath, [join(repo, 'dist/cli.js'), 'audit', join(repo, 'sample-workspace', rel), '--format', 'json', ...extra], {
+      p = run(process.execPath, [join(repo, 'dist/cli.js'), 'audit', isAbsolute(rel) ? rel : join(repo, 'sample-workspace', rel), '--format', 'json', ...extra], {
         maxBuffer: 512 * 1024 * 1024,
       })
         .catch((e: { stdout?: string; code?: number }) => {

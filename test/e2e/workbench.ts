@@ -70,10 +70,11 @@ export async function openFile(page: Page, relPath: string, timeout = 60_000): P
   const deadline = Date.now() + timeout;
   for (;;) {
     await openPalette(page, relPath);
-    const row = rows(page).filter({ hasText: name }).first();
+    // The exact file name: a re-packed sibling (fares-and-passes.repacked-….jsonl) also matches the query.
+    const row = rows(page).filter({ has: page.locator('.label-name', { hasText: exactText(name) }) }).first();
     try {
       await row.waitFor({ state: 'visible', timeout: 10_000 });
-      await page.keyboard.press('Enter');
+      await row.click();
       break;
     } catch (e) {
       await page.keyboard.press('Escape');

@@ -8,8 +8,9 @@ import { readdir, readFile } from 'node:fs/promises';
 import { join } from 'node:path';
 import type { Ctx } from '../context';
 import { assert, skip } from '../assert';
-import { findWebviewFrame, openFile, runCommand, sleep } from '../workbench';
+import { findWebviewFrame, hideBottomPanel, openFile, runCommand, setSidebarWidth, sleep } from '../workbench';
 import { SAMPLE_LOG } from './smoke';
+import { showPanel } from './common';
 
 const sha = async (p: string) => createHash('sha256').update(await readFile(p)).digest('hex');
 
@@ -62,13 +63,48 @@ export const repack = {
     const out = await readFile(join(dir, created[0]!), 'utf8');
     assert(out.trim().split('\n').length === report.records.length + report.errors.length || out.trim().split('\n').length >= report.records.length, `re-packed log has ${out.trim().split('\n').length} lines for ${report.records.length} records`);
 
-    // The comparison: expected lost passages from the CLI audit of the new file under the new budget.
-    const repacked = await ctx.audit(`${SAMPLE_LOG.split('/').slice(0, -1).join('/')}/${created[0]}`).catch(() => undefined);
-    void repacked;
-    const frame = await findWebviewFrame(ctx.page, '[data-view="compare"], .compare-view, [aria-label*="ompar"]', 30_000);
-    const text = ((await frame.locator('body').innerText()) ?? '').replace(/\s+/g, ' ');
-    assert(/lost/i.test(text), `comparison view shows no lost passages: "${text.slice(0, 300)}"`);
-    ctx.log(`new file ${created[0]}; source sha256 unchanged; comparison: "${text.slice(0, 160)}"`);
+    // Expected losses, from the CLI audits of the source and of the new log (its records carry the
+    // new decisions): a passage is lost when it was sent before (kept or clipped) and is dropped after.
+    const after = await ctx.audit(join(dir, created[0]!));
+    const lostByTurn = new Map<string, Set<string>>();
+    for (const b of after.records) {
+      const a = report.records.find((r) => r.conversation === b.conversation && r.turn === b.turn);
+      if (!a) continue;
+      const lost = b.segments.filter((sb) => sb.kind === 'passage' && sb.fate === 'dropped' && a.segments.some((sa) => sa.id === sb.id && sa.fate !== 'dropped'));
+      lostByTurn.set(`${b.conversation} · turn ${b.turn}`, new Set(lost.map((x) => x.id)));
+    }
+    const expectedLost = [...lostByTurn.values()].reduce((n, set) => n + set.size, 0);
+    assert(expectedLost > 0, `halving the budget to ${budget} lost no passage by the CLI's account; the scenario needs a smaller budget`);
+
+    const frame = await findWebviewFrame(ctx.page, '[data-view="compare"] .compare-table', 60_000);
+    const table = frame.locator('[data-view="compare"] .compare-table');
+    if (!(await table.isVisible().catch(() => false))) {
+      // The panel may stay on its current tab after a re-pack: the user opens the Compare tab.
+      await showPanel(ctx);
+      await frame.locator('vscode-tab-header#tab-compare, vscode-tab-header', { hasText: /compare/i }).first().click();
+    }
+    await table.locator('.diff-lost').first().waitFor({ timeout: 30_000 });
+    const rows = await table.locator('tbody tr').evaluateAll((trs) =>
+      trs.map((tr) => ({ text: (tr as HTMLElement).innerText.replace(/\s+/g, ' '), lost: tr.querySelector('.diff-lost')?.textContent ?? '' })),
+    );
+    let shownLost = 0;
+    for (const r of rows.filter((x) => x.lost)) {
+      const key = [...lostByTurn.keys()].find((k) => new RegExp(`${k.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}(?!\\d)`).test(r.text));
+      assert(key, `comparison row "${r.text.slice(0, 120)}" names no turn of the log`);
+      const m = /(\d[\d,]*) lost: (.*)$/.exec(r.lost.replace(/^\W+/, ''));
+      assert(m, `comparison row "${r.lost}" does not say how many passages were lost`);
+      const n = Number(m[1]!.replace(/,/g, ''));
+      const want = lostByTurn.get(key)!;
+      assert(n === want.size, `${key}: panel says ${n} lost, the audits say ${want.size} (${[...want].join(', ')})`);
+      const named = m[2]!.split(/[,\s]+/).map((x) => x.trim()).filter((x) => /^[\w.-]+$/.test(x));
+      assert(named.length > 0, `${key}: "${r.lost}" names no passage`);
+      for (const id of named) assert(want.has(id), `${key}: panel names ${id} as lost; the audits do not`);
+      shownLost += n;
+    }
+    assert(shownLost > 0, 'the comparison lists no lost passage');
+    ctx.log(`new file ${created[0]}; source sha256 unchanged; comparison lists ${shownLost} lost passages (audits: ${expectedLost} over ${after.records.length} turns)`);
+    await hideBottomPanel(ctx.page);
+    await setSidebarWidth(ctx.page, 820);
     await ctx.setTheme('Default Dark Modern');
     await ctx.screenshot('s4-compare-dark');
     await ctx.setTheme('Default Light Modern');
