@@ -1,4 +1,4 @@
-// Bundles the hostile-text benchmark and the reference-fixture maker (issue 10) with esbuild.
+// Bundles the hostile-text benchmark, the reference-fixture maker and the code-point scan (issue 10) with esbuild.
 // tiktoken stays external: it loads its WASM file from node_modules at run time.
 import { build } from 'esbuild';
 
@@ -24,4 +24,5 @@ await Promise.all([
     entryPoints: ['test/fixtures/tokens/make-hostile-reference.ts'],
     outfile: 'dist/make-hostile-reference.js',
   }),
+  build({ ...common, entryPoints: ['test/fixtures/tokens/scan-code-points.ts'], outfile: 'dist/scan-code-points.js' }),
 ]);
