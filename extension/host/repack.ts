@@ -316,7 +316,13 @@ export async function repackLog(arg: unknown, active: ActiveLog, sessions: LogSe
   const t0 = performance.now();
   const generation = results.nextGeneration();
   const collector = new ComparisonCollector(new engine.ComparisonTotalsBuilder(prices));
-  const out = await AtomicOutput.create(target);
+  let out: AtomicOutput;
+  try {
+    out = await AtomicOutput.create(target);
+  } catch (e) {
+    void vscode.window.showErrorMessage(`Spillway: cannot write beside the log: ${e instanceof Error ? e.message : String(e)}`);
+    return undefined;
+  }
   const ac = new AbortController();
   const name = vscode.workspace.asRelativePath(src.uri, false);
   let summary;

@@ -173,12 +173,13 @@ function sideTable(title: string, side: ComparisonSide): HTMLElement {
 
 export function renderComparisonTurn(v: ComparisonTurnView): HTMLElement {
   const r = v.row;
-  const lost = v.a.segments.filter((s) => s.diff === 'lost').map((s) => s.id);
+  const lost = v.a.segments.filter((s) => s.diff === 'lost' && s.kind === 'passage').map((s) => s.id);
+  const history = v.a.segments.filter((s) => s.diff === 'lost' && s.kind === 'history').length;
   return h(
     'div',
     { class: 'compare-turn' },
     h('h3', {}, `${r.conversation} · turn ${r.turn}`),
-    h('p', {}, h('span', { class: `verdict verdict-${r.verdict}` }, icon(`${VERDICT[r.verdict].icon} `), VERDICT[r.verdict].word), lost.length ? ` · passages lost: ${lost.join(', ')}` : ' · no passage lost'),
+    h('p', {}, h('span', { class: `verdict verdict-${r.verdict}` }, icon(`${VERDICT[r.verdict].icon} `), VERDICT[r.verdict].word), lost.length ? ` · passages lost: ${lost.join(', ')}` : ' · no passage lost', history ? ` · ${int(history)} history segment(s) lost` : ''),
     h('div', { class: 'compare-sides' }, sideTable('Before (source log)', v.a), sideTable('After (re-packed log)', v.b)),
   );
 }

@@ -39,6 +39,7 @@ function lineChart(label: string, v: SweepView, value: (c: SweepCell) => number 
   }
   for (const b of budgets) svg.appendChild(s('text', { class: 'axis', x: x(b), y: H - PAD.bottom + 14, 'text-anchor': 'middle' }, int(b)));
   svg.appendChild(s('text', { class: 'axis', x: (PAD.left + W - PAD.right) / 2, y: H - 4, 'text-anchor': 'middle' }, 'budget (tokens)'));
+  const labels: { y: number; x: number; cls: string; name: string }[] = [];
   series.forEach((se, i) => {
     const pts = se.cells.map((c) => ({ c, v: value(c) })).filter((p): p is { c: SweepCell; v: number } => p.v !== null);
     if (pts.length === 0) return;
@@ -46,8 +47,12 @@ function lineChart(label: string, v: SweepView, value: (c: SweepCell) => number 
     svg.appendChild(s('polyline', { class: `${cls} sweep-line`, points: pts.map((p) => `${x(p.c.budget).toFixed(1)},${y(p.v).toFixed(1)}`).join(' '), fill: 'none' }));
     for (const p of pts) svg.appendChild(s('circle', { class: `${cls} sweep-point`, cx: x(p.c.budget).toFixed(1), cy: y(p.v).toFixed(1), r: 3 }, s('title', {}, `${se.name}, budget ${int(p.c.budget)}: ${tick(p.v)}`)));
     const last = pts[pts.length - 1]!;
-    svg.appendChild(s('text', { class: `${cls} series-label`, x: x(last.c.budget) + 6, y: y(last.v) + 4 + (i % 3) * 0 }, se.name));
+    labels.push({ x: x(last.c.budget) + 6, y: y(last.v) + 4, cls, name: se.name });
   });
+  // End labels of lines that finish close together are pushed apart (12 px) so each stays legible.
+  labels.sort((a, b) => a.y - b.y);
+  for (let i = 1; i < labels.length; i++) labels[i]!.y = Math.max(labels[i]!.y, labels[i - 1]!.y + 12);
+  for (const l of labels) svg.appendChild(s('text', { class: `${l.cls} series-label`, x: l.x, y: l.y.toFixed(1) }, l.name));
   return svg;
 }
 
