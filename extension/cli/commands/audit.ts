@@ -104,6 +104,8 @@ export async function runAudit(file: string, o: AuditCliOptions): Promise<number
         read,
         onProgress,
         analysis,
+        // Waits while the output is behind, so ledgers do not pile up in memory.
+        drain: () => out.write(''),
         onLedgerJson: (json: string) => {
           out.push((first ? '' : ',\n') + json);
           first = false;

@@ -22,6 +22,8 @@ export interface AuditContext {
   onLedger?: (ledger: Ledger) => void;
   /** Receives each ledger as `JSON.stringify(ledger)` (takes precedence over `onLedger`; lets workers serialise). */
   onLedgerJson?: (json: string) => void;
+  /** Awaited now and then (each batch, each progress step): lets a slow output push back (bounded memory). */
+  drain?: () => Promise<void>;
   read?: ReadOptions;
   /** Keep at most this many issues in the report (the count in the summary stays exact). */
   maxIssues?: number;
@@ -162,6 +164,7 @@ export async function auditItems(items: AsyncIterable<ReadItem> | Iterable<ReadI
     if (collector.ledger(out.ledger, item.offset, out.ledger)) {
       // Let the event loop breathe (editor responsiveness, cancellation).
       await new Promise((r) => setImmediate(r));
+      if (ctx.drain) await ctx.drain();
     }
   }
   return collector.report();

@@ -141,6 +141,7 @@ export async function auditLinesParallel(lines: AsyncIterable<LineItem>, opts: A
       while (queue.length >= maxInFlight) {
         consume(await queue.shift()!);
         check();
+        if (ctx.drain) await ctx.drain();
       }
     };
     for await (const item of lines) {
