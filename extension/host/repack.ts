@@ -355,6 +355,8 @@ export async function repackLog(arg: unknown, active: ActiveLog, sessions: LogSe
         }
       },
     );
+    // A cancel that arrives after the core's last check still means "do not write".
+    if (ac.signal.aborted) throw new engine.RepackCancelled();
     await out.commit(overwrite);
   } catch (e) {
     await out.abort();
