@@ -18,6 +18,7 @@ const ui = vi.hoisted(() => ({
   infos: [] as string[],
   errors: [] as string[],
   cancelAfterFirstProgress: false,
+  prices: undefined as string | undefined,
 }));
 
 vi.mock('vscode', () => {
@@ -78,7 +79,7 @@ vi.mock('vscode', () => {
   };
   const workspace = {
     asRelativePath: (u: Uri | string) => posix.basename(typeof u === 'string' ? u : u.path),
-    getConfiguration: () => ({ get: () => undefined }),
+    getConfiguration: () => ({ get: (k: string) => (k === 'prices' ? ui.prices : undefined) }),
     fs: {
       stat: async (u: Uri) => {
         const s = await fsStat(u.path);
@@ -104,7 +105,7 @@ vi.mock('../../extension/host/core', async () => {
 vi.mock('../../extension/host/output', () => ({ output: () => ({ info() {}, warn() {}, error() {} }) }));
 
 import * as vscode from 'vscode';
-import { repackLog, RepackResults } from '../../extension/host/repack';
+import { repackLog, RepackResults, sweepLog } from '../../extension/host/repack';
 import type { HostMessage } from '../../extension/protocol/messages';
 
 const SAMPLE = 'sample-workspace/logs/fares-and-passes.jsonl';
@@ -115,7 +116,7 @@ beforeEach(() => {
   dir = mkdtempSync(join(tmpdir(), 'spillway-repack-'));
   src = join(dir, 'fares-and-passes.jsonl');
   copyFileSync(SAMPLE, src);
-  Object.assign(ui, { picks: [], inputs: [], warnings: [], infos: [], errors: [], cancelAfterFirstProgress: false });
+  Object.assign(ui, { picks: [], inputs: [], warnings: [], infos: [], errors: [], cancelAfterFirstProgress: false, prices: undefined });
 });
 afterEach(() => rmSync(dir, { recursive: true, force: true }));
 
@@ -196,5 +197,39 @@ describe('repackLog (stand-in vscode, real disk, real core)', () => {
     expect(out?.path).toBe(join(dir, 'fares-and-passes.repacked-evidence-first-1024-cl100k_base.jsonl'));
     const rec = JSON.parse(readFileSync(out!.path, 'utf8').split('\n')[0]!);
     expect([rec.plan, rec.model.encoding, rec.model.window - rec.model.reserve]).toEqual(['evidence-first', 'cl100k_base', 1024]);
+  });
+});
+
+describe('sweepLog (stand-in vscode, real core)', () => {
+  it('sweeps budgets × the picked plans and publishes the chart data with cost per 1,000 turns', async () => {
+    ui.inputs.push('1k, 512', ''); // budgets (sorted to 512, 1,024), no k axis
+    ui.picks.push((xs) => (xs as Array<{ picked?: boolean }>).filter((x) => x.picked)); // the two pre-selected plans
+    ui.prices = '*=1'; // 1 per million input tokens for every model
+    const results = new RepackResults();
+    const published: HostMessage[] = [];
+    results.onDidPublish((m) => published.push(m));
+    const view = await sweepLog(vscode.Uri.file(src), { session: undefined } as never, { get: () => undefined } as never, { show: async () => undefined } as never, results);
+    expect(view).toMatchObject({ records: 6, budgets: [512, 1024], plans: ['recent-first', 'evidence-first'], ks: [null], priced: true });
+    expect(view!.cells.map((c) => [c.budget, c.plan])).toEqual([
+      [512, 'recent-first'],
+      [512, 'evidence-first'],
+      [1024, 'recent-first'],
+      [1024, 'evidence-first'],
+    ]);
+    // `spillway sweep … --budgets 512,768,1k --plans recent-first,evidence-first` printed evidence kept
+    // 23.5% / 47.8% at 512 and 81.5% / 100.0% at 1,024 (docs/repack-in-editor.md).
+    expect(view!.cells.map((c) => (100 * c.evidenceRetention!).toFixed(1))).toEqual(['23.5', '47.8', '81.5', '100.0']);
+    // recent-first at 1,024 spends what the log itself spent (5,578 tokens over 6 turns, `spillway compare`):
+    // 5,578 × 1 / 10⁶ ÷ 6 × 1,000 = 0.92966…
+    expect(view!.cells[2]!.tokens).toBe(5578);
+    expect(view!.cells[2]!.costPer1000Turns).toBeCloseTo(5578 / 6000, 12);
+    expect(published).toMatchObject([{ type: 'sweepReady', reveal: true }]);
+  });
+
+  it('refuses a bad budget list in the input box', async () => {
+    ui.inputs.push('4k,lots');
+    await expect(sweepLog(vscode.Uri.file(src), { session: undefined } as never, { get: () => undefined } as never, { show: async () => undefined } as never, new RepackResults())).rejects.toThrow(
+      'input refused: "lots" is not a whole number like 8192 or 8k.',
+    );
   });
 });
