@@ -10,6 +10,7 @@ import type { ImportOptions } from './options';
 import { checkPattern } from './split';
 import { flattenTraces, importSpans, spanLinesOfDocument, spansOfLine } from './otlp';
 import type { FlatSpan } from './otlp';
+import { utf8Length } from '../text/utf8';
 
 export type { ImportOptions, SplitterOptions, SplitterKind, LayoutMode } from './options';
 export { IMPORT_SETTINGS, importOptionsFromSettings } from './options';
@@ -39,19 +40,6 @@ export type ConvertEvent =
   | { type: 'record'; record: LocatedRecord; explain: RecordExplain }
   | { type: 'issue'; issue: LogIssue };
 
-function utf8Length(s: string): number {
-  let n = 0;
-  for (let i = 0; i < s.length; i++) {
-    const c = s.charCodeAt(i);
-    if (c < 0x80) n += 1;
-    else if (c < 0x800) n += 2;
-    else if (c >= 0xd800 && c <= 0xdbff && i + 1 < s.length) {
-      n += 4;
-      i++;
-    } else n += 3;
-  }
-  return n;
-}
 
 /** Splits text into lines with 1-based numbers and UTF-8 byte offsets (BOM and CR handled). */
 export function* textLines(text: string): Generator<SourceLine> {

@@ -5,6 +5,7 @@
  */
 import type { LocatedRecord, LogIssue } from './types';
 import { parseRecordLine } from './validate';
+import { concatBytes } from '../text/bytes';
 
 export { parseRecordLine } from './validate';
 
@@ -24,16 +25,6 @@ export interface RawLine {
 
 const utf8 = new TextDecoder('utf-8', { fatal: true });
 
-function concat(parts: Uint8Array[], total: number): Uint8Array {
-  if (parts.length === 1) return parts[0]!;
-  const out = new Uint8Array(total);
-  let at = 0;
-  for (const p of parts) {
-    out.set(p, at);
-    at += p.length;
-  }
-  return out;
-}
 
 /** Yields non-blank lines (or an issue for a line that cannot be read as text). */
 export async function* readLogLines(
@@ -97,7 +88,7 @@ export async function* readLogLines(
       else {
         parts.push(piece);
         partLen += piece.length;
-        out = finish(concat(parts, partLen));
+        out = finish(concatBytes(parts, partLen));
       }
       if (out) yield out;
       atFileStart = false;
@@ -111,7 +102,7 @@ export async function* readLogLines(
     consumed += chunk.length;
   }
   if (partLen > 0 || tooLong) {
-    const out = finish(concat(parts, partLen));
+    const out = finish(concatBytes(parts, partLen));
     if (out) yield out;
   }
   void atFileStart;

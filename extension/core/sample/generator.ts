@@ -20,6 +20,8 @@ import { mixSeed, mulberry32, type Rng } from './prng';
 import { QUESTIONS, STATIONS, TOPICS, UNSUPPORTED_CLAIMS, USER_OPENERS, type Topic } from './vocabulary';
 import type { EncodingName } from '../tokens/encoder';
 import type { LogRecord, Segment } from '../log/types';
+import { utf8Length } from '../text/utf8';
+export { utf8Length };
 
 export interface BudgetChoice {
   window: number;
@@ -122,20 +124,6 @@ interface Conversation {
   lastPassages: Article[];
 }
 
-/** UTF-8 length of a string without Node's Buffer (the core stays free of Node-only APIs). */
-export function utf8Length(s: string): number {
-  let n = 0;
-  for (let i = 0; i < s.length; i++) {
-    const c = s.charCodeAt(i);
-    if (c < 0x80) n += 1;
-    else if (c < 0x800) n += 2;
-    else if (c >= 0xd800 && c <= 0xdbff && i + 1 < s.length) {
-      n += 4;
-      i++;
-    } else n += 3;
-  }
-  return n;
-}
 
 function pickWeighted(rng: Rng, models: readonly ModelChoice[]): ModelChoice {
   const total = models.reduce((s, m) => s + m.weight, 0);

@@ -1,6 +1,7 @@
 import { exactCount, exactEncode, needsExactPath, type PieceCoder } from './bpe/exactEncode';
 import { SPLIT_PATTERNS } from './bpe/pretokenize';
 import { RankTable, type RawRanks } from './bpe/rankTable';
+import { concatBytes } from '../text/bytes';
 
 /**
  * Exact BPE encoders, loaded lazily (the rank tables are large: nothing is parsed until a log needs it).
@@ -113,13 +114,7 @@ function decodeIds(table: RankTable, ids: readonly number[]): Uint8Array {
     parts[i] = b;
     total += b.length;
   }
-  const out = new Uint8Array(total);
-  let at = 0;
-  for (const b of parts) {
-    out.set(b, at);
-    at += b.length;
-  }
-  return out;
+  return concatBytes(parts, total);
 }
 
 interface EncodingModules {

@@ -7,6 +7,8 @@
 import type { TurnComparison, ComparisonTotals } from '../repack/compare';
 import type { SegmentView, TurnDetail } from '../../protocol/messages';
 import type { ComparisonRow, ComparisonSegment, ComparisonSide, ComparisonTurnView, ComparisonVerdict, SegmentDiff } from '../../protocol/comparison';
+import { utf8Length } from '../text/utf8';
+export { utf8Length };
 
 /** Passage ids listed per row (the count stays exact). */
 export const ROW_IDS = 8;
@@ -145,20 +147,6 @@ export class ComparisonStore {
   }
 }
 
-/** UTF-8 length of a JS string (what the line occupies in the written file). */
-export function utf8Length(s: string): number {
-  let n = 0;
-  for (let i = 0; i < s.length; i++) {
-    const c = s.charCodeAt(i);
-    if (c < 0x80) n += 1;
-    else if (c < 0x800) n += 2;
-    else if (c >= 0xd800 && c <= 0xdbff && i + 1 < s.length && (s.charCodeAt(i + 1) & 0xfc00) === 0xdc00) {
-      n += 4;
-      i++;
-    } else n += 3;
-  }
-  return n;
-}
 
 /**
  * Ties each comparison the re-pack reports to where its two records sit: the source record being
