@@ -47,27 +47,15 @@ export function atomicWriter(target: string): AtomicWriter {
   if (special) return streamWriter(createWriteStream(abs, { flags: 'a' }));
   mkdirSync(dirname(abs), { recursive: true });
   const tmp = join(dirname(abs), `.${basename(abs)}.${randomBytes(6).toString('hex')}.tmp`);
-  const out = createWriteStream(tmp, { flags: 'wx' });
-  let closed = false;
-  const close = async (): Promise<void> => {
-    if (closed) return;
-    closed = true;
-    out.end();
-    await once(out, 'close');
-  };
+  const base = streamWriter(createWriteStream(tmp, { flags: 'wx' }));
   return {
-    async write(s) {
-      if (!out.write(s)) await once(out, 'drain');
-    },
-    push(s) {
-      out.write(s);
-    },
+    ...base,
     async commit() {
-      await close();
+      await base.commit();
       await fsp.rename(tmp, abs);
     },
     async abort() {
-      await close().catch(() => undefined);
+      await base.abort().catch(() => undefined);
       await fsp.rm(tmp, { force: true });
     },
   };
