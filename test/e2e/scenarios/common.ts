@@ -26,9 +26,13 @@ export async function panelFrame(ctx: Ctx, timeout = 30_000): Promise<Frame> {
   return await findWebviewFrame(ctx.page, 'header.top .log-title', timeout);
 }
 
-export async function showPanel(ctx: Ctx): Promise<Frame> {
+/** Show the panel from the palette, on its Turn tab (a re-pack leaves it on Compare). */
+export async function showPanel(ctx: Ctx, tab: RegExp = /^\s*turn\s*$/i): Promise<Frame> {
   await runCommand(ctx.page, panelCommand(ctx).palette, { timeout: 40_000 });
-  return await panelFrame(ctx);
+  const frame = await panelFrame(ctx);
+  const header = frame.locator('vscode-tab-header', { hasText: tab }).first();
+  if ((await header.count()) > 0) await header.click();
+  return frame;
 }
 
 /** Wait until the panel shows the turn of `line` (its segment table is for that record). */

@@ -80,8 +80,7 @@ export const repack = {
     const table = frame.locator('[data-view="compare"] .compare-table');
     if (!(await table.isVisible().catch(() => false))) {
       // The panel may stay on its current tab after a re-pack: the user opens the Compare tab.
-      await showPanel(ctx);
-      await frame.locator('vscode-tab-header#tab-compare, vscode-tab-header', { hasText: /compare/i }).first().click();
+      await showPanel(ctx, /^\s*compare\s*$/i);
     }
     await table.locator('.diff-lost').first().waitFor({ timeout: 30_000 });
     const rows = await table.locator('tbody tr').evaluateAll((trs) =>

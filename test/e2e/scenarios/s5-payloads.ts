@@ -61,11 +61,21 @@ export const payloads = {
       const origin = new URL(ctx.server.url).origin;
       const reqs = ctx.requests.filter((q) => q.fromWebview);
       assert(reqs.some((q) => /webview\/main\.js/.test(q.url)), `the request log holds no load of the panel's own script: the webview request check would be blind (${reqs.length} webview requests)`);
-      const remote = reqs.filter((q) => !q.url.startsWith(origin) && !/^(data|blob):/.test(q.url));
+      // VS Code names webview resources https://<authority>.vscode-resource.vscode-cdn.net/<path>; its
+      // service worker answers them from the server, so they never leave. Only our own extension's files count.
+      const ownResource = (u: string) => {
+        try {
+          const url = new URL(u);
+          return url.hostname.endsWith('.vscode-resource.vscode-cdn.net') && decodeURIComponent(url.pathname).startsWith(ctx.server.extensionDir + '/');
+        } catch {
+          return false;
+        }
+      };
+      const remote = reqs.filter((q) => !q.url.startsWith(origin) && !/^(data|blob):/.test(q.url) && !ownResource(q.url));
       const payloadFetch = ctx.requests.slice(firstRequest).filter((q) => /\/x(\?|$)/.test(q.url));
       assert(remote.length === 0, `webview requested outside ${origin}: ${remote.map((q) => q.url).join(', ')}`);
       assert(payloadFetch.length === 0, `a payload's <img src=x> was fetched: ${payloadFetch.map((q) => q.url).join(', ')}`);
-      ctx.log(`${checkedPassages} payload segments shown as text over ${Math.min(4, report.records.length)} turns; ${reqs.length} webview requests, all to ${origin}`);
+      ctx.log(`${checkedPassages} payload segments shown as text over ${Math.min(4, report.records.length)} turns; ${reqs.length} webview requests, all to ${origin} or our extension's own resources`);
     } finally {
       ctx.page.off('dialog', onDialog);
     }
