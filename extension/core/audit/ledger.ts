@@ -9,6 +9,8 @@ import type { Accountant } from '../tokens/accountant';
 import { encodingForModel, isEncodingName, type EncodingName } from '../tokens/encoder';
 import { framingName, framingNumbers } from '../tokens/framing';
 import { PromptMeter } from '../pack/meter';
+import { utf8Length } from '../text/utf8';
+import { largeSegmentNote } from './notes';
 import { isMandatory, parsePlan, type PlanResult } from '../pack/plans';
 import type { AuditOptions, CutPoint, KindTotals, Ledger, SegmentLedger, TurnState } from './types';
 
@@ -16,6 +18,7 @@ import type { AuditOptions, CutPoint, KindTotals, Ledger, SegmentLedger, TurnSta
 export const LARGE_SEGMENT_CHARS = 200_000;
 
 export class LedgerError extends Error {}
+
 
 export function emptyKinds(): KindTotals {
   return Object.fromEntries(SEGMENT_KINDS.map((k) => [k, 0])) as KindTotals;
@@ -71,12 +74,14 @@ export function buildLedger(located: LocatedRecord, opts: AuditOptions, acct: Ac
   const { record } = located;
   const notes: string[] = [];
   const encoding = resolveEncoding(record, opts);
+  const large = new Map<string, { bytes: number; countMs: number }>();
   for (const s of record.segments) {
     if (s.text.length >= LARGE_SEGMENT_CHARS) {
       const t0 = performance.now();
       acct.count(encoding, s.text);
-      const secs = (performance.now() - t0) / 1000;
-      notes.push(`${s.kind} ${s.id} is ${(s.text.length / 1e6).toFixed(1)} M characters; counted in ${secs.toFixed(2)} s`);
+      const info = { bytes: utf8Length(s.text), countMs: Math.round(performance.now() - t0) };
+      large.set(s.id, info);
+      notes.push(largeSegmentNote(s.kind, s.id, info));
     }
   }
   const packed = packRecord(record, opts, acct);
@@ -118,6 +123,8 @@ export function buildLedger(located: LocatedRecord, opts: AuditOptions, acct: Ac
     if (seg.score !== undefined) out.score = seg.score;
     const cut = cuts.get(i);
     if (fate === 'clipped' && cut) out.cut = cut;
+    const big = large.get(seg.id);
+    if (big) out.large = big;
     if (fatesFrom === 'sent' && planFates[i] !== fate) {
       out.planFate = planFates[i];
       notes.push(`${seg.kind} ${seg.id}: sent ${fate}, the ${packed.planName} plan would have ${planFates[i]} it`);

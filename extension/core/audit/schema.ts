@@ -28,6 +28,7 @@ const segment = {
     fate,
     cut,
     planFate: fate,
+    large: { type: 'object', additionalProperties: false, required: ['bytes', 'countMs'], properties: { bytes: nat, countMs: nat } },
   },
 };
 

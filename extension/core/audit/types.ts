@@ -25,6 +25,8 @@ export interface SegmentLedger {
   cut?: CutPoint;
   /** When the record says what was sent and it differs from the declared plan: the plan's fate. */
   planFate?: Fate;
+  /** Only for very large texts (guard rail against hostile input): UTF-8 size and the time the first count took. */
+  large?: { bytes: number; countMs: number };
 }
 
 /**

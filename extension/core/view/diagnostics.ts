@@ -5,6 +5,7 @@
  */
 import type { LogIssue } from '../log/types';
 import { fmt } from './format';
+import { largeSegmentNote } from '../audit/notes';
 import type { AuditedLog, AuditedRecord } from './audited';
 import { lostEvidence, rank1Passage, type Checks } from './problems';
 import { locateRecordLine, rawColumnForChar, type RecordLineMap, type Span } from './recordLine';
@@ -17,6 +18,7 @@ export const DIAGNOSTIC_CODES = [
   'spillway.rank1-dropped',
   'spillway.evidence-lost',
   'spillway.usage-drift',
+  'spillway.large-segment',
   // Grounding (core/view/grounding.ts)
   'spillway.unsupported-sentence',
   'spillway.evidence-lost-to-budget',
@@ -137,6 +139,12 @@ export function recordDiagnostics(rec: AuditedRecord, lineText: string, checks: 
             : `Evidence passage "${lost.id}" was clipped${lost.segment?.cut ? ` at character ${fmt(lost.segment.cut.char)}` : ''}: ${fmt(lost.segment?.keptTokens ?? 0)} of ${fmt(lost.segment?.tokens ?? 0)} tokens sent.`;
       push(span, 'warning', 'spillway.evidence-lost', msg);
     }
+  }
+
+  // Guard rail against hostile text: always reported, so a huge passage explains a slow first open.
+  for (const s of ledger.segments) {
+    if (!s.large) continue;
+    push(segText(s.id) ?? whole(lineText, locate()), 'information', 'spillway.large-segment', `${largeSegmentNote(s.kind, s.id, s.large)} (${fmt(s.tokens)} tokens).`);
   }
 
   if (checks.usageDrift && ledger.usage && Math.abs(ledger.usage.drift) > checks.usageDriftTolerance) {
