@@ -2,23 +2,12 @@
  * cleanPrefix and tokenBoundaries against an oracle built from the reference encoder: tiktoken's own ids
  * and its `decode` (bytes), checked with a fatal UTF-8 decoder and String.prototype.startsWith.
  */
-import { get_encoding, type Tiktoken } from 'tiktoken';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { loadEncoder, type Encoder, type EncodingName } from '../../../extension/core/tokens/encoder';
+import type { Tiktoken } from 'tiktoken';
+import { describe, expect, it } from 'vitest';
 import { cleanPrefix, tokenBoundaries } from '../../../extension/core/tokens/cut';
+import { encoderPair, NAMES } from '../../support/encoders';
 
-const NAMES: EncodingName[] = ['cl100k_base', 'o200k_base'];
-const encoders = new Map<EncodingName, Encoder>();
-const refs = new Map<EncodingName, Tiktoken>();
-beforeAll(async () => {
-  for (const n of NAMES) {
-    encoders.set(n, await loadEncoder(n));
-    refs.set(n, get_encoding(n));
-  }
-}, 120_000);
-afterAll(() => {
-  for (const r of refs.values()) r.free();
-});
+const { encoders, refs } = encoderPair();
 
 const TEXTS = [
   'plain ascii text, nothing special.',

@@ -5,27 +5,15 @@
  */
 import { existsSync, readdirSync, readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { get_encoding, type Tiktoken } from 'tiktoken';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { describe, expect, it } from 'vitest';
 import * as gptCl100k from 'gpt-tokenizer/encoding/cl100k_base';
 import * as gptO200k from 'gpt-tokenizer/encoding/o200k_base';
-import { decodeBytes, loadEncoder, type Encoder, type EncodingName } from '../../../extension/core/tokens/encoder';
+import { decodeBytes, type Encoder, type EncodingName } from '../../../extension/core/tokens/encoder';
 import { HOSTILE_ROWS } from '../../../scripts/bench-hostile';
+import { encoderPair, NAMES } from '../../support/encoders';
 
-const NAMES: EncodingName[] = ['cl100k_base', 'o200k_base'];
 const NO_SPECIAL = { allowedSpecial: new Set<string>(), disallowedSpecial: new Set<string>() };
-
-const encoders = new Map<EncodingName, Encoder>();
-const refs = new Map<EncodingName, Tiktoken>();
-beforeAll(async () => {
-  for (const n of NAMES) {
-    encoders.set(n, await loadEncoder(n));
-    refs.set(n, get_encoding(n));
-  }
-}, 120_000); // two vocabularies per library; slow on a busy 2-core machine
-afterAll(() => {
-  for (const r of refs.values()) r.free();
-});
+const { encoders, refs } = encoderPair();
 
 const enc = (n: EncodingName): Encoder => encoders.get(n)!;
 const ref = (n: EncodingName, text: string): number[] => Array.from(refs.get(n)!.encode_ordinary(text));

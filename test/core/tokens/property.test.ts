@@ -3,22 +3,10 @@
  * scripts, Spillway's ids equal the reference encoder's (`tiktoken` WASM, `encode_ordinary`).
  */
 import fc from 'fast-check';
-import { get_encoding, type Tiktoken } from 'tiktoken';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { loadEncoder, type Encoder, type EncodingName } from '../../../extension/core/tokens/encoder';
+import { describe, expect, it } from 'vitest';
+import { encoderPair, NAMES } from '../../support/encoders';
 
-const NAMES: EncodingName[] = ['cl100k_base', 'o200k_base'];
-const encoders = new Map<EncodingName, Encoder>();
-const refs = new Map<EncodingName, Tiktoken>();
-beforeAll(async () => {
-  for (const n of NAMES) {
-    encoders.set(n, await loadEncoder(n));
-    refs.set(n, get_encoding(n));
-  }
-}, 120_000);
-afterAll(() => {
-  for (const r of refs.values()) r.free();
-});
+const { encoders, refs } = encoderPair();
 
 /** Latin, CJK, Hangul, digits, whitespace of several kinds, punctuation, emoji with modifiers, combining
  * marks, and the characters where JS and the reference disagree on `\s` or on case folding. */
