@@ -98,7 +98,7 @@ export interface LogIssue {
 /** A record with where it came from in the file. */
 export interface LocatedRecord {
   line: number;
-  /** Byte offset of the line's start in the file (after any BOM handling, in bytes of the original file). */
+  /** Where the line starts: bytes of the original file when streamed (`readLog`), UTF-16 units of the text for `readLogText`. Used for progress. */
   offset: number;
   record: LogRecord;
 }
