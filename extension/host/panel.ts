@@ -149,6 +149,9 @@ export class PanelProvider implements vscode.WebviewViewProvider, vscode.Disposa
   private cursorMoved(e: vscode.TextEditorSelectionChangeEvent): void {
     const s = this.active.session;
     if (!s?.log || e.textEditor.document !== s.doc) return;
+    // Only a user's (or a command's) move steers the panel: a selection VS Code restores after a
+    // reload (kind undefined) must not override the turn the panel restored from its own state.
+    if (e.kind === undefined) return;
     const line = e.selections[0]!.active.line + 1;
     if (line === this.selectedLine || !recordAtLine(s.log, line)) return;
     this.selectedLine = line;
