@@ -6,11 +6,12 @@ import { JOINER, type Fate, type LogRecord, type Segment } from '../log/types';
 import type { Ledger } from '../audit/types';
 import { bm25Scorer, kendallTauB, ranksByScore } from './bm25';
 import { countTokens, overlapF1 } from './f1';
-import { squadTokens, words } from './normalize';
+import { squadTokens } from './normalize';
 import { positionCheck } from './position';
 import { sentenceSupport, type SupportPart } from './sentences';
 import { nearDuplicates } from './shingles';
 import { ageInDays, isStale, parseIsoTime } from './staleness';
+import { plainTexts, sharedTexts, type TextSource } from './textfacts';
 import type {
   AnalysisSettings,
   AnalysisSummary,
@@ -96,13 +97,10 @@ function emptyCounts(): Record<SentenceLabel, number> {
 export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial<AnalysisSettings> = {}): TurnAnalysis {
   const s: AnalysisSettings = { ...DEFAULT_ANALYSIS_SETTINGS, ...settings };
   const notes: string[] = [];
-  // One word list per distinct text for the whole turn: support, BM25 and shingles share it.
-  const wordCache = new Map<string, string[]>();
-  const tokenize = (text: string): string[] => {
-    let list = wordCache.get(text);
-    if (!list) wordCache.set(text, (list = words(text)));
-    return list;
-  };
+  // Segment texts recur across records: their word lists, term and token counts and shingles come
+  // from a memo shared by support, F1, BM25 and shingles. The reply and the query are one-offs,
+  // computed directly so they do not push passages out of the memo.
+  const texts: TextSource = sharedTexts;
   const joined = joinLedger(record, ledger, notes);
   const byPrompt = [...joined].sort((a, b) => a.order - b.order);
   // Best first: retriever rank, then prompt order. Ties in the analyses resolve in this order.
@@ -125,24 +123,24 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
     // straddle the cut still counts as lost to the budget.
     if (j.fate !== 'kept') parts.push({ id: j.seg.id, kind: j.seg.kind, part: 'spilled', text: j.seg.text });
   }
-  const sentences = hasReply ? sentenceSupport(reply, parts, s, undefined, tokenize) : [];
+  const sentences = hasReply ? sentenceSupport(reply, parts, s, undefined, texts) : [];
   const counts = emptyCounts();
   for (const sentence of sentences) counts[sentence.label]++;
 
   // --- Knowledge F1 -----------------------------------------------------------------------
   const replyTokens = squadTokens(reply);
   const replyCounts = countTokens(replyTokens);
-  const f1Against = (text: string): number => {
-    const t = squadTokens(text);
-    return overlapF1(replyCounts, replyTokens.length, countTokens(t), t.length).f1;
+  const f1Against = (text: string, source = texts): number => {
+    const t = source.squad(text);
+    return overlapF1(replyCounts, replyTokens.length, t.counts, t.length).f1;
   };
 
   // --- BM25+ ------------------------------------------------------------------------------
   const queryText = joined.filter((j) => j.seg.kind === 'query').map((j) => j.seg.text).join(JOINER);
-  const hasQuery = tokenize(queryText).length > 0;
+  const hasQuery = plainTexts.words(queryText).length > 0;
   // Internal ids by index: passage ids from a log are not guaranteed unique.
   const docs = passages.map((j, i) => ({ id: String(i), text: j.seg.text }));
-  const scorer = hasQuery || hasReply ? bm25Scorer(docs, tokenize) : null;
+  const scorer = hasQuery || hasReply ? bm25Scorer(docs, texts, plainTexts) : null;
   const queryScores = scorer && hasQuery ? scorer(queryText) : null;
   const replyScores = scorer && hasReply ? scorer(reply) : null;
   const queryScoreList = passages.map((_, i) => queryScores?.get(String(i)) ?? 0);
@@ -196,7 +194,8 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
       ids,
       missing: ids.filter((_, i) => found[i] === undefined),
       cut: present.filter((j) => j.fate !== 'kept').map((j) => ({ id: j.seg.id, fate: j.fate })),
-      f1: hasReply && present.length > 0 ? f1Against(present.map((j) => j.seg.text).join(' ')) : null,
+      // A one-off text: computed without the memo.
+      f1: hasReply && present.length > 0 ? f1Against(present.map((j) => j.seg.text).join(' '), plainTexts) : null,
     };
     if (evidence.missing.length > 0) notes.push(`evidence names no passage of this record: ${evidence.missing.join(', ')}`);
   }
@@ -243,7 +242,7 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
     passages.map((j) => ({ id: j.seg.id, text: j.seg.text, keptTokens: j.keptTokens })),
     s,
     notes,
-    tokenize,
+    texts,
   );
 
   // --- position ---------------------------------------------------------------------------

@@ -1,6 +1,6 @@
 /**
  * Lexical relevance with minisearch's BM25+ (minisearch 7.2.0, `calcBM25Score` in
- * src/MiniSearch.ts), Lv & Zhai 2011's BM25+ with the idf of Robertson & Zaragoza 2009:
+ * src/MiniSearch.ts; computed here as minisearch computes it, see `bm25Scorer`), Lv & Zhai 2011's BM25+ with the idf of Robertson & Zaragoza 2009:
  *
  *   BM25+(q, d) = Σ_{t in q}  idf(t) · ( δ + tf(t,d)·(k1 + 1) / ( tf(t,d) + k1·(1 − b + b·|d|/avgdl) ) )
  *   idf(t)      = ln( 1 + (N − n(t) + 0.5) / (n(t) + 0.5) )
@@ -12,8 +12,7 @@
  * multiplies the summed score by the number of distinct query terms matched (a coordination
  * factor); `bm25Scores` divides that back out so the figure is the BM25+ sum above.
  */
-import MiniSearch from 'minisearch';
-import { words } from './normalize';
+import { plainTexts, type TextSource } from './textfacts';
 
 export const BM25_PARAMS = { k: 1.2, b: 0.7, d: 0.5 } as const;
 
@@ -27,43 +26,70 @@ export function bm25Scores(query: string, docs: readonly { id: string; text: str
 
 /**
  * Index `docs` once and score any number of queries against them (a turn scores its passages
- * against both the query and the reply). `tokenize` lets a caller share memoised word lists.
+ * against both the query and the reply). `texts` (documents) and `queryTexts` let a caller share
+ * memoised term counts.
+ *
+ * The figures are minisearch 7.2.0's, floating-point operation for floating-point operation (a
+ * test compares them bit for bit with a minisearch index), computed here without its per-search
+ * overhead: an index `{ fields: ['text'], tokenize: words, processTerm: identity }` with every
+ * doc added in order, searched with each distinct query term boosted by its count, in chunks of
+ * QUERY_CHUNK terms (as we used to search it: minisearch merges matched terms with
+ * Array#includes, quadratic in the terms a document matches), each chunk's score divided by its
+ * coordination factor, the chunks summed. Specifically, minisearch
+ * - keeps |d| = distinct terms of d and avgdl as the running mean avg_n = (avg_(n−1)·(n−1) + |d_n|)/n;
+ * - scores a matched term as boost · idf · (δ + tf·(k1+1)/(tf + k1·(1 − b + b·|d|/avgdl)));
+ * - adds a chunk's term scores per doc left to right in query-term order, multiplies the sum by
+ *   the number q of chunk terms the doc matched; we divide by q again (not a no-op in floating point).
  */
-export function bm25Scorer(docs: readonly { id: string; text: string }[], tokenize: (text: string) => string[] = words): (query: string) => Map<string, number> {
+export function bm25Scorer(
+  docs: readonly { id: string; text: string }[],
+  texts: Pick<TextSource, 'terms'> = plainTexts,
+  queryTexts: Pick<TextSource, 'terms'> = texts,
+): (query: string) => Map<string, number> {
   const seen = new Set<string>();
   for (const doc of docs) {
     if (seen.has(doc.id)) throw new Error(`bm25Scores: duplicate document id "${doc.id}"`);
     seen.add(doc.id);
   }
-  // Every term of the collection: query terms outside it score 0 and are not searched at all
-  // (minisearch's per-term search overhead dominates for a long reply used as the query).
-  const vocabulary = new Set<string>();
-  for (const doc of docs) for (const t of tokenize(doc.text)) vocabulary.add(t);
-  const index = new MiniSearch<{ id: number; text: string }>({
-    fields: ['text'],
-    tokenize: (text) => tokenize(text),
-    processTerm: (term) => term,
-    searchOptions: { bm25: { ...BM25_PARAMS } },
+  const n = docs.length;
+  const termCounts = docs.map((doc) => texts.terms(doc.text));
+  let avgLength = 0;
+  termCounts.forEach((t, count) => {
+    avgLength = (avgLength * count + t.size) / (count + 1);
   });
-  // Numeric ids inside the index: passage ids are arbitrary strings from the log.
-  index.addAll(docs.map((doc, i) => ({ id: i, text: doc.text })));
+  // n(t) for every term of the collection: query terms outside it score 0 and are skipped.
+  const docFrequency = new Map<string, number>();
+  for (const t of termCounts) for (const term of t.keys()) docFrequency.set(term, (docFrequency.get(term) ?? 0) + 1);
+  const { k, b, d } = BM25_PARAMS;
+  const sums = new Float64Array(n);
+  const matched = new Int32Array(n);
   return (query) => {
     const scores = new Map<string, number>();
     for (const doc of docs) scores.set(doc.id, 0);
-    if (docs.length === 0) return scores;
-    // Search each distinct term once, boosted by its count: the same sum as repeating it. Terms go
-    // in chunks because minisearch merges matched terms with Array#includes (quadratic in the
-    // number of distinct terms a document matches); BM25+ is a sum over query terms, so the
-    // chunk scores (each divided by its own coordination factor) add up to the same figure.
-    const counts = new Map<string, number>();
-    for (const t of tokenize(query)) if (vocabulary.has(t)) counts.set(t, (counts.get(t) ?? 0) + 1);
-    const boostTerm = (term: string): number => counts.get(term) ?? 1;
-    const terms = [...counts.keys()];
+    if (n === 0) return scores;
+    const terms: string[] = [];
+    const queryCounts = queryTexts.terms(query);
+    for (const term of queryCounts.keys()) if (docFrequency.has(term)) terms.push(term);
     for (let at = 0; at < terms.length; at += QUERY_CHUNK) {
-      for (const hit of index.search(terms.slice(at, at + QUERY_CHUNK).join(' '), { boostTerm })) {
-        const doc = docs[hit.id as number];
-        // minisearch multiplies by the number of distinct query terms matched; divide it back out.
-        if (doc) scores.set(doc.id, scores.get(doc.id)! + hit.score / Math.max(1, hit.queryTerms.length));
+      sums.fill(0);
+      matched.fill(0);
+      for (const term of terms.slice(at, at + QUERY_CHUNK)) {
+        const boost = queryCounts.get(term)!;
+        const matching = docFrequency.get(term)!;
+        const invDocFreq = Math.log(1 + (n - matching + 0.5) / (matching + 0.5));
+        for (let i = 0; i < n; i++) {
+          const t = termCounts[i]!;
+          const tf = t.get(term);
+          if (tf === undefined) continue;
+          const raw = invDocFreq * (d + (tf * (k + 1)) / (tf + k * (1 - b + (b * t.size) / avgLength)));
+          const weighted = boost * raw;
+          sums[i] = matched[i] === 0 ? weighted : sums[i]! + weighted;
+          matched[i]!++;
+        }
+      }
+      for (let i = 0; i < n; i++) {
+        const q = matched[i]!;
+        if (q > 0) scores.set(docs[i]!.id, scores.get(docs[i]!.id)! + (sums[i]! * q) / q);
       }
     }
     return scores;

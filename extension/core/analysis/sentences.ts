@@ -8,7 +8,8 @@
  * averaged away by a well-grounded rest of the reply. Thresholds are ours; see docs/grounding.md.
  */
 import type { SegmentKind } from '../log/types';
-import { contentWords, words } from './normalize';
+import { contentWords } from './normalize';
+import { plainTexts, type TextSource } from './textfacts';
 import type { PartMatch, SentenceLabel, SentenceSupport } from './types';
 
 export interface SentenceSpan {
@@ -53,7 +54,8 @@ export interface SupportThresholds {
 
 interface IndexedPart {
   part: SupportPart;
-  vocabulary: Set<string>;
+  /** The part's words (keys; the counts are not used here). */
+  vocabulary: ReadonlyMap<string, number>;
 }
 
 function bestMatch(sentenceWords: readonly string[], parts: readonly IndexedPart[]): PartMatch | null {
@@ -78,12 +80,12 @@ export function sentenceSupport(
   parts: readonly SupportPart[],
   thresholds: SupportThresholds,
   locale?: string,
-  tokenize: (text: string) => string[] = words,
+  texts: Pick<TextSource, 'terms'> = plainTexts,
 ): SentenceSupport[] {
   const kept: IndexedPart[] = [];
   const spilled: IndexedPart[] = [];
   for (const part of parts) {
-    (part.part === 'kept' ? kept : spilled).push({ part, vocabulary: new Set(tokenize(part.text)) });
+    (part.part === 'kept' ? kept : spilled).push({ part, vocabulary: texts.terms(part.text) });
   }
   return splitSentences(reply, locale).map((span, index) => {
     const cw = contentWords(span.text);

@@ -15,6 +15,7 @@
  */
 import xxhash from 'xxhash-wasm';
 import { words } from './normalize';
+import type { TextSource } from './textfacts';
 import type { DuplicateCheck, DuplicatePair } from './types';
 
 export type ShingleOption = 'set' | 'labelled';
@@ -24,7 +25,7 @@ export type ShingleOption = 'set' | 'labelled';
  * space, so joining with one is unambiguous. A text shorter than w words (but not empty) is one
  * shingle of all its words, so short identical passages still compare equal (our choice).
  */
-function shingleBag(tokens: readonly string[], w: number): Map<string, number> {
+export function shingleBag(tokens: readonly string[], w: number): Map<string, number> {
   if (!Number.isInteger(w) || w < 1) throw new Error(`shingle size must be a positive integer, got ${w}`);
   const bag = new Map<string, number>();
   if (tokens.length === 0) return bag;
@@ -152,6 +153,15 @@ export interface DuplicateSettings {
   minhashSize: number;
 }
 
+/** What `nearDuplicates` reads of a passage text (a memoised TextSource can serve it). */
+export type ShingleTexts = Pick<TextSource, 'words' | 'shingles' | 'sketch'>;
+
+export const plainShingleTexts: ShingleTexts = {
+  words,
+  shingles: shingleSet,
+  sketch: (text, w, k) => bottomKSketch(shingleBag(words(text), w).keys(), k),
+};
+
 /**
  * Near-duplicate pairs among a turn's passages. `passages` must be ordered best first (rank,
  * then prompt order): in each pair `a` is the better one and `b`'s sent tokens are the waste.
@@ -164,10 +174,10 @@ export function nearDuplicates(
   passages: readonly DuplicateInput[],
   settings: DuplicateSettings,
   notes?: string[],
-  tokenize: (text: string) => string[] = words,
+  texts: ShingleTexts = plainShingleTexts,
 ): DuplicateCheck {
   const w = settings.shingleWords;
-  const tokenLists = passages.map((p) => tokenize(p.text));
+  const tokenLists = passages.map((p) => texts.words(p.text));
   // Shingle positions (an upper bound on distinct shingles), known before building any set.
   const total = tokenLists.reduce((sum, t) => sum + (t.length === 0 ? 0 : Math.max(1, t.length - w + 1)), 0);
   const useMinhash = total > settings.minhashAboveShingles && hash32 !== null;
@@ -185,7 +195,7 @@ export function nearDuplicates(
   if (useMinhash) {
     const k = settings.minhashSize;
     // One passage's shingles at a time: memory is k values per passage plus the largest passage.
-    const sketches = tokenLists.map((t) => bottomKSketch(shingleBag(t, w).keys(), k));
+    const sketches = passages.map((p) => texts.sketch(p.text, w, k));
     for (let i = 0; i < sketches.length; i++) {
       for (let j = i + 1; j < sketches.length; j++) {
         const si = sketches[i]!;
@@ -196,7 +206,7 @@ export function nearDuplicates(
       }
     }
   } else {
-    const sets = tokenLists.map((t) => new Set(shingleBag(t, w).keys()));
+    const sets = passages.map((p) => texts.shingles(p.text, w));
     const owners = new Map<string, number[]>();
     const common = new Map<number, number>();
     const n = sets.length;

@@ -3,6 +3,7 @@ import { countTokens } from 'gpt-tokenizer/encoding/cl100k_base';
 import { describe, expect, it } from 'vitest';
 import { analyseTurn, DEFAULT_ANALYSIS_SETTINGS, summariseAnalyses } from '../../../extension/core/analysis/analyse';
 import { ANALYSIS_SUMMARY_SCHEMA, TURN_ANALYSIS_SCHEMA } from '../../../extension/core/analysis/schema';
+import { sharedTexts } from '../../../extension/core/analysis/textfacts';
 import { instructions, makeTurn, P1, P4, passage, query, referenceTurn } from '../../fixtures/analysis/turns';
 
 describe('analyseTurn on the reference turn (see test/fixtures/analysis/turns.ts)', () => {
@@ -190,6 +191,26 @@ describe('robustness', () => {
   it('a date that is not ISO is reported, not guessed', () => {
     const { record, ledger } = makeTurn({ segments: [passage('p1', 1, P1, { date: 'last spring' })], reply: 'x', time: '2026-01-01' });
     expect(analyseTurn(record, ledger).notes).toContain('passage "p1" has a date that is not ISO 8601: "last spring"');
+  });
+});
+
+describe('the text memo shared across records does not change any analysis', () => {
+  it('a turn gives the same analysis cold and after turns that reuse its passages differently', () => {
+    const { record, ledger } = referenceTurn();
+    const segments = record.segments;
+    sharedTexts.memo.clear();
+    const cold = analyseTurn(record, ledger);
+    // The same passages in another order, other fates and another reply, then the reference again.
+    const other = makeTurn({
+      segments: [...segments].reverse(),
+      fates: { p1: { clipAt: 10 }, p3: 'kept', p4: 'dropped' },
+      reply: 'Seniors ride free. Bikes go on trams.',
+    });
+    const otherCold = analyseTurn(other.record, other.ledger);
+    const warm = analyseTurn(record, ledger);
+    expect(warm).toEqual(cold);
+    sharedTexts.memo.clear();
+    expect(analyseTurn(other.record, other.ledger)).toEqual(otherCold);
   });
 });
 
