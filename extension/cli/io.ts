@@ -30,7 +30,7 @@ export async function openLog(path: string): Promise<{ chunks: AsyncIterable<Uin
 export interface AtomicWriter {
   write(s: string): Promise<void>;
   /** Queues without waiting (the stream keeps order); for synchronous callbacks. */
-  push(s: string): void;
+  push(s: string | Uint8Array): void;
   commit(): Promise<void>;
   abort(): Promise<void>;
 }

@@ -1,7 +1,7 @@
 /** `spillway audit <log>`: the per-turn ledger as text, JSON (`spillway.audit/1`) or HTML. */
 import type { Command } from 'commander';
 import { auditItems } from '../../core/audit/audit';
-import { auditLinesParallel, PARALLEL_MIN_BYTES } from '../../core/audit/parallel';
+import { auditFileParallel, PARALLEL_MIN_BYTES, type ParallelContext } from '../../core/audit/parallel';
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { readLog, readLogLines, type ReadOptions } from '../../core/log/reader';
@@ -74,13 +74,18 @@ function auditWorkers(size: number): number | undefined {
   return size > PARALLEL_MIN_BYTES ? undefined : 0;
 }
 
-async function auditStream(file: string, from: string | undefined, chunks: AsyncIterable<Uint8Array>, opts: Parameters<typeof auditItems>[1], ctx: Parameters<typeof auditItems>[2] = {}, size = 0) {
+type ParallelExtras = Pick<ParallelContext, 'onLedgerBytes' | 'ledgerSeparator'>;
+
+async function auditStream(file: string, from: string | undefined, chunks: AsyncIterable<Uint8Array>, opts: Parameters<typeof auditItems>[1], ctx: Parameters<typeof auditItems>[2] = {}, size = 0, extras: ParallelExtras = {}) {
   const workers = auditWorkers(size);
   const workerScript = join(__dirname, 'auditWorker.js');
   if (workers !== 0 && (from ?? 'auto') !== 'chat' && (from ?? 'auto') !== 'otlp' && existsSync(workerScript)) {
     const format = (from ?? 'auto') === 'auto' ? (detectFormat(await headLines(file)) ?? 'spillway') : from;
     // Identical report to the single-thread path (test/core/audit/parallel.test.ts), on every core.
-    if (format === 'spillway') return auditLinesParallel(readLogLines(chunks, ctx.read), opts, { ...ctx, workerScript, workers });
+    if (format === 'spillway') {
+      (chunks as { destroy?: () => void }).destroy?.(); // the workers read the file themselves
+      return auditFileParallel(file, opts, { ...ctx, ...extras, workerScript, ...(workers === undefined ? {} : { workers }) });
+    }
   }
   return logItems(file, from, chunks, ctx.read).then((items) => auditItems(items, opts, ctx));
 }
@@ -110,7 +115,11 @@ export async function runAudit(file: string, o: AuditCliOptions): Promise<number
           out.push((first ? '' : ',\n') + json);
           first = false;
         },
-      }, size);
+      }, size, {
+        // The parallel path: ledgers arrive already joined and encoded by the workers.
+        ledgerSeparator: ',\n',
+        onLedgerBytes: (bytes: Uint8Array) => out.push(bytes),
+      });
       const tail = report.analysisSummary ? `,"analysisSummary":${JSON.stringify(report.analysisSummary)}` : '';
       await out.write(`\n],"errors":${JSON.stringify(report.errors)},"summary":${JSON.stringify(report.summary)}${tail}}\n`);
     } else if (o.format === 'text') {

@@ -14,6 +14,14 @@ export interface ReadOptions {
   maxLineBytes?: number;
 }
 
+/** Where a byte range of a log starts, for reading a part of it (the parallel audit's workers). */
+export interface RangeStart {
+  /** Byte offset of the range's first byte in the file; a BOM is only looked for at offset 0. */
+  offset: number;
+  /** Line number of the range's first line. */
+  line: number;
+}
+
 export const DEFAULT_MAX_LINE_BYTES = 64 * 1024 * 1024;
 
 export interface RawLine {
@@ -30,15 +38,15 @@ const utf8 = new TextDecoder('utf-8', { fatal: true });
 export async function* readLogLines(
   chunks: AsyncIterable<Uint8Array> | Iterable<Uint8Array>,
   opts: ReadOptions = {},
+  from: RangeStart = { offset: 0, line: 1 },
 ): AsyncGenerator<RawLine | { issue: LogIssue }> {
   const max = opts.maxLineBytes ?? DEFAULT_MAX_LINE_BYTES;
   let parts: Uint8Array[] = [];
   let partLen = 0;
-  let lineNo = 1;
-  let lineStart = 0; // byte offset of current line
-  let consumed = 0; // bytes consumed before current chunk
+  let lineNo = from.line;
+  let lineStart = from.offset; // byte offset of current line
+  let consumed = from.offset; // bytes consumed before current chunk
   let tooLong = false;
-  let atFileStart = true;
 
   const finish = (bytes: Uint8Array): RawLine | { issue: LogIssue } | undefined => {
     const line = lineNo;
@@ -48,7 +56,7 @@ export async function* readLogLines(
     }
     let b = bytes;
     let skip = 0;
-    if (line === 1 && b.length >= 3 && b[0] === 0xef && b[1] === 0xbb && b[2] === 0xbf) skip = 3;
+    if (offset === 0 && b.length >= 3 && b[0] === 0xef && b[1] === 0xbb && b[2] === 0xbf) skip = 3;
     let end = b.length;
     if (end > skip && b[end - 1] === 0x0d) end--;
     b = b.subarray(skip, end);
@@ -91,7 +99,6 @@ export async function* readLogLines(
         out = finish(concatBytes(parts, partLen));
       }
       if (out) yield out;
-      atFileStart = false;
       parts = [];
       partLen = 0;
       tooLong = false;
@@ -105,7 +112,6 @@ export async function* readLogLines(
     const out = finish(concatBytes(parts, partLen));
     if (out) yield out;
   }
-  void atFileStart;
 }
 
 export type ReadItem = LocatedRecord | { issue: LogIssue };

@@ -201,7 +201,7 @@ export class PromptMeter {
     if (room <= 0) return undefined;
     const text = this.segments[i]!.text;
     const enc = this.acct.loadedEncoder(this.encoding);
-    const ids = enc.encode(text);
+    const ids = this.acct.encode(this.encoding, text);
     const m = this.messageOf[i]!;
     const alone = !this.isPresent[m];
     // First guess: all the room minus what the message (or the seam) itself costs.

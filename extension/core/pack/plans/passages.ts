@@ -85,7 +85,7 @@ export class PassagePlacer {
     const cap = this.mods.cap;
     if (cap !== undefined && this.meter.tokens[i]! > cap) {
       const enc = this.meter.acct.loadedEncoder(this.meter.encoding);
-      const p = cleanPrefix(enc, text, enc.encode(text), cap);
+      const p = cleanPrefix(enc, text, this.meter.acct.encode(this.meter.encoding, text), cap);
       c = { chars: p.chars, cut: { token: p.tokens, char: p.chars } };
       if (this.mods.cutSentence) {
         const end = lastSentenceEnd(text, p.chars);
