@@ -58,7 +58,7 @@ export function packRecord(record: LogRecord, opts: AuditOptions, acct: Accounta
   const encoding = resolveEncoding(record, opts);
   const budgeting = resolveBudget(record, opts);
   const plan = parsePlan(opts.plan ?? record.plan);
-  const meter = new PromptMeter(record.segments, framingNumbers(record.framing), acct, encoding);
+  const meter = new PromptMeter(record.segments, framingNumbers(record.framing), acct, encoding, record.conversation);
   const result = plan.pack({ record, budget: budgeting.budget, meter });
   return { meter, result, budgeting, encoding, planName: plan.name };
 }

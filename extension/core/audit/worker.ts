@@ -17,7 +17,26 @@ const port = parentPort;
 if (!port) throw new Error('worker.ts must run in a worker thread');
 
 const CHUNK = 1 << 20;
-const utf8 = new TextEncoder();
+
+/** UTF-8 bytes appended straight into one growing buffer of its own (so it can be transferred). */
+class Utf8Sink {
+  private buf = Buffer.allocUnsafeSlow(1 << 20);
+  length = 0;
+
+  add(s: string): void {
+    const worst = s.length * 3; // UTF-16 unit → at most 3 UTF-8 bytes
+    if (this.length + worst > this.buf.length) {
+      const next = Buffer.allocUnsafeSlow(Math.max(this.buf.length * 2, this.length + worst));
+      this.buf.copy(next, 0, 0, this.length);
+      this.buf = next;
+    }
+    this.length += this.buf.write(s, this.length, 'utf8');
+  }
+
+  bytes(): Uint8Array {
+    return new Uint8Array(this.buf.buffer, this.buf.byteOffset, this.length);
+  }
+}
 
 let init: WorkerInit | undefined;
 let acct: Accountant | undefined;
@@ -47,8 +66,8 @@ async function handle(msg: WorkerRequest): Promise<{ reply: WorkerReply; transfe
   }
   if (!init || !acct) throw new Error('worker used before init');
   const out: WireOutcome[] = [];
-  const json: string[] = [];
   const sep = init.separator;
+  const sink = sep === undefined ? undefined : new Utf8Sink();
   for await (const item of readLogLines(rangeChunks(msg.range), init.read, { offset: msg.range.start, line: msg.range.line })) {
     if ('issue' in item) {
       out.push({ issue: item.issue });
@@ -61,20 +80,20 @@ async function handle(msg: WorkerRequest): Promise<{ reply: WorkerReply; transfe
     }
     const r = await auditOne({ line: item.line, offset: item.offset, record: parsed.record }, init.opts, acct, init.analysis);
     if ('issue' in r) out.push({ issue: r.issue });
-    else if (sep !== undefined) {
+    else if (sink) {
       const l = r.ledger;
       const s: SummaryFields = { state: l.state, spill: l.spill, conversation: l.conversation };
       if (l.rank1Fate !== undefined) s.rank1Fate = l.rank1Fate;
       if (l.analysis !== undefined) s.analysis = l.analysis;
       out.push({ s, o: item.offset });
-      json.push(sep, JSON.stringify(l));
+      sink.add(sep!);
+      sink.add(JSON.stringify(l));
     } else out.push({ l: r.ledger, o: item.offset });
   }
   const reply: BatchReply = { type: 'batch', id: msg.id, out, stats: acct.stats() };
-  if (sep === undefined) return { reply };
-  const bytes = utf8.encode(json.join(''));
-  reply.bytes = bytes;
-  return { reply, transfer: [bytes.buffer as ArrayBuffer] };
+  if (!sink) return { reply };
+  reply.bytes = sink.bytes();
+  return { reply, transfer: [reply.bytes.buffer as ArrayBuffer] };
 }
 
 port.on('message', (msg: WorkerRequest) => {

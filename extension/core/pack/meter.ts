@@ -20,17 +20,20 @@ export interface MeterMessage {
   overhead: number;
 }
 
-/** Groups segments into chat messages: equal `message` indices share one message, others stand alone. */
-export function groupMessages(segments: readonly Segment[]): { messageOf: number[]; messages: { role: string; name?: string; members: number[] }[] } {
+/**
+ * Groups segments into chat messages: equal `message` indices share one message, others stand alone.
+ * Overheads are left at 0 for the caller to fill in.
+ */
+export function groupMessages(segments: readonly Segment[]): { messageOf: number[]; messages: MeterMessage[] } {
   const messageOf: number[] = [];
-  const messages: { role: string; name?: string; members: number[] }[] = [];
+  const messages: MeterMessage[] = [];
   const byIndex = new Map<number, number>();
   segments.forEach((s, i) => {
     let m: number | undefined;
     if (s.message !== undefined) m = byIndex.get(s.message);
     if (m === undefined) {
       m = messages.length;
-      messages.push({ role: s.role, name: s.name, members: [] });
+      messages.push({ role: s.role, name: s.name, members: [], overhead: 0 });
       if (s.message !== undefined) byIndex.set(s.message, m);
     }
     messages[m]!.members.push(i);
@@ -57,17 +60,20 @@ export class PromptMeter {
     readonly framing: FramingNumbers,
     readonly acct: Accountant,
     readonly encoding: EncodingName,
+    /** The record's conversation: lets the accountant reuse counts of the history it re-sends. */
+    conversation?: string,
   ) {
     const g = groupMessages(segments);
     this.messageOf = g.messageOf;
-    this.messages = g.messages.map((m) => ({
-      ...m,
-      overhead:
+    // Filled in place: a record has dozens of messages and a log millions of records.
+    for (const m of g.messages) {
+      m.overhead =
         framing.perMessage +
         (framing.countRole ? acct.count(encoding, m.role) : 0) +
-        (m.name !== undefined ? (framing.countRole ? acct.count(encoding, m.name) : 0) + framing.perName : 0),
-    }));
-    this.tokens = segments.map((s) => acct.count(encoding, s.text));
+        (m.name !== undefined ? (framing.countRole ? acct.count(encoding, m.name) : 0) + framing.perName : 0);
+    }
+    this.messages = g.messages;
+    this.tokens = acct.countSegments(encoding, conversation, segments);
     this.kept = segments.map(() => undefined);
     this.msgTotal = this.messages.map(() => 0);
     this.isPresent = this.messages.map(() => false);

@@ -59,7 +59,7 @@ export function repackRecord(record: LogRecord, opts: RepackOptions, acct: Accou
   const plan = parsePlan(opts.plan ?? record.plan);
   const order = isComposedPlan(plan) && plan.arrange ? plan.arrange(record.segments) : undefined;
   const segments = order ? order.map((i) => record.segments[i]!) : record.segments;
-  const meter = new PromptMeter(segments, framingNumbers(record.framing), acct, encoding);
+  const meter = new PromptMeter(segments, framingNumbers(record.framing), acct, encoding, record.conversation);
   const ctx = { record: order ? { ...record, segments } : record, budget, meter };
 
   let kept: (number | undefined)[];

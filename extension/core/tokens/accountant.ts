@@ -14,6 +14,11 @@ let hasherPromise: Promise<Hasher> | undefined;
 
 /** Texts shorter than this are their own memo key (hashing them costs more than it saves). */
 const SHORT_KEY = 48;
+/** Conversations whose last record is kept for countSegments (each holds references to one record's texts). */
+const CARRY_CONVERSATIONS = 2048;
+/** Texts shorter than this (roles, names) use a small map of their own. */
+const TINY = 16;
+const TINY_ENTRIES = 4096;
 /** Token-id arrays kept per encoding (a few kB each: bounded at about 16 MB for passages of ~500 tokens). */
 const ID_MEMO_ENTRIES = 4096;
 
@@ -35,6 +40,9 @@ export class Accountant {
   private misses = 0;
   private encodedChars = 0;
   private sharedHits = 0;
+  private readonly tiny = new Map<EncodingName, Map<string, number>>();
+  /** Per encoding and conversation, the last record's segment texts and counts (see countSegments). */
+  private readonly carry = new GenerationalMemo<string, { index: Map<string, number>; texts: string[]; counts: number[] }>(CARRY_CONVERSATIONS);
   private readonly idMemos = new Map<EncodingName, GenerationalMemo<string, readonly number[]>>();
 
   private constructor(
@@ -73,6 +81,7 @@ export class Accountant {
   /** Exact token count of `text`, memoised. The encoder must have been loaded with `encoder()`. */
   count(name: EncodingName, text: string): number {
     if (text.length === 0) return 0;
+    if (text.length < TINY) return this.countTiny(name, text);
     let memos = this.memos.get(name);
     if (!memos) {
       memos = { short: new GenerationalMemo<string, number>(this.memoEntries), long: new GenerationalMemo<string, number>(this.memoEntries) };
@@ -104,6 +113,59 @@ export class Accountant {
   }
 
   /**
+   * Counts of each segment's text. A conversation re-sends its history every turn under the same
+   * segment ids, so a text equal to the one the same id had in this conversation's last record takes
+   * that record's count, compared as strings (exact, and cheaper than hashing it again). Other texts go
+   * through `count`. `conversation` undefined: every text goes through `count`.
+   */
+  countSegments(name: EncodingName, conversation: string | undefined, segments: readonly { id: string; text: string }[]): number[] {
+    const counts = new Array<number>(segments.length);
+    if (conversation === undefined) {
+      for (let i = 0; i < segments.length; i++) counts[i] = this.count(name, segments[i]!.text);
+      return counts;
+    }
+    const scope = `${name}\u0000${conversation}`;
+    const prev = this.carry.get(scope);
+    const index = new Map<string, number>();
+    const texts = new Array<string>(segments.length);
+    for (let i = 0; i < segments.length; i++) {
+      const s = segments[i]!;
+      const j = prev?.index.get(s.id);
+      if (j !== undefined && prev!.texts[j] === s.text) {
+        this.hits++;
+        counts[i] = prev!.counts[j]!;
+      } else counts[i] = this.count(name, s.text);
+      index.set(s.id, i);
+      texts[i] = s.text;
+    }
+    this.carry.set(scope, { index, texts, counts });
+    return counts;
+  }
+
+  /**
+   * Roles, names and other very short texts: asked for dozens of times per record, from a map small
+   * enough to stay in the CPU cache (cleared if a log has thousands of distinct ones).
+   */
+  private countTiny(name: EncodingName, text: string): number {
+    let tiny = this.tiny.get(name);
+    if (!tiny) {
+      tiny = new Map();
+      this.tiny.set(name, tiny);
+    }
+    const hit = tiny.get(text);
+    if (hit !== undefined) {
+      this.hits++;
+      return hit;
+    }
+    this.misses++;
+    this.encodedChars += text.length;
+    const n = this.loadedEncoder(name).count(text);
+    if (tiny.size >= TINY_ENTRIES) tiny.clear();
+    tiny.set(text, n);
+    return n;
+  }
+
+  /**
    * The token ids of `text` (for cut points), memoised for long texts: a passage clipped in one turn
    * is usually clipped again in later ones. Callers must not modify the array.
    */
@@ -127,6 +189,7 @@ export class Accountant {
   stats(): AccountantStats {
     let entries = 0;
     for (const m of this.memos.values()) entries += m.short.size + m.long.size;
+    for (const m of this.tiny.values()) entries += m.size;
     const out: AccountantStats = { hits: this.hits, misses: this.misses, entries, encodedChars: this.encodedChars };
     if (this.shared) out.sharedHits = this.sharedHits;
     return out;
