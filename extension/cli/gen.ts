@@ -5,7 +5,7 @@
 import { Command, InvalidArgumentError } from 'commander';
 import { createWriteStream, openSync, renameSync, rmSync, type WriteStream } from 'node:fs';
 import { basename, dirname, join } from 'node:path';
-import { LRUCache } from 'lru-cache';
+import { GenerationalMemo } from '../core/cache/generational';
 import { generateLog, type BudgetChoice, type GeneratorOptions, type ModelChoice } from '../core/sample/generator';
 import { isEncodingName, loadEncoder, type Encoder, type EncodingName } from '../core/tokens/encoder';
 
@@ -80,16 +80,8 @@ async function run(flags: GenFlags): Promise<void> {
   const encoders = new Map<EncodingName, Encoder>();
   if (flags.usage) for (const name of ['o200k_base', 'cl100k_base'] as const) encoders.set(name, await loadEncoder(name));
   // History and passages repeat, so a bounded memo of counts keeps the usage figures cheap.
-  const memo = new LRUCache<string, number>({ max: 50_000 });
-  const count = (text: string, enc: EncodingName): number => {
-    const key = enc + '\u0000' + text;
-    let n = memo.get(key);
-    if (n === undefined) {
-      n = (encoders.get(enc) as Encoder).count(text);
-      memo.set(key, n);
-    }
-    return n;
-  };
+  const memo = new GenerationalMemo<string, number>(50_000);
+  const count = (text: string, enc: EncodingName): number => memo.getOr(enc + '\u0000' + text, () => (encoders.get(enc) as Encoder).count(text));
   const maxBytes = flags.mb === undefined ? undefined : Math.round(flags.mb * 1024 * 1024);
   const options: GeneratorOptions = {
     seed: flags.seed,

@@ -2,11 +2,11 @@
  * What the analyses derive from one text (word list, term counts, SQuAD token counts, shingles,
  * bottom-k sketch), behind one interface so a caller can serve them from a memo. A log re-sends
  * the same passages in many records; `sharedTexts` computes each of these once per distinct text
- * (bounded: see TextMemo), `plainTexts` computes them afresh on every call. Both give the same
+ * (bounded: see GenerationalMemo), `plainTexts` computes them afresh on every call. Both give the same
  * values; consumers must treat them as read-only.
  */
 import { countTokens, type TokenCounts } from './f1';
-import { TextMemo } from './memo';
+import { GenerationalMemo } from '../cache/generational';
 import { squadTokens, words } from './normalize';
 import { bottomKSketch, plainShingleTexts, shingleBag, type Sketch } from './shingles';
 
@@ -80,9 +80,9 @@ class Facts {
  * A TextSource memoised by text content: at most 2 × `limit` texts held, none longer than
  * `maxChars` (longer ones are computed afresh, so one huge text cannot pin a huge entry).
  */
-export function memoTexts(limit: number, maxChars = 65_536): TextSource & { readonly memo: TextMemo<unknown> } {
-  const memo = new TextMemo<Facts>(limit);
-  const facts = (text: string): Facts => (text.length > maxChars ? new Facts(text) : memo.get(text, (t) => new Facts(t)));
+export function memoTexts(limit: number, maxChars = 65_536): TextSource & { readonly memo: GenerationalMemo<string, unknown> } {
+  const memo = new GenerationalMemo<string, Facts>(2 * limit);
+  const facts = (text: string): Facts => (text.length > maxChars ? new Facts(text) : memo.getOr(text, (t) => new Facts(t)));
   return {
     memo,
     words: (text) => facts(text).words(),

@@ -27,6 +27,16 @@ export class GenerationalMemo<K, V> {
     return o;
   }
 
+  /** The value for `key`, made with `make(key)` and stored on a miss (`make` must depend on `key` only). */
+  getOr(key: K, make: (key: K) => V): V {
+    let v = this.get(key);
+    if (v === undefined) {
+      v = make(key);
+      this.set(key, v);
+    }
+    return v;
+  }
+
   set(key: K, value: V): void {
     if (this.young.has(key)) this.young.set(key, value);
     else {

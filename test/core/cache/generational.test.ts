@@ -47,6 +47,16 @@ describe('GenerationalMemo', () => {
     expect(m.get('b')).toBe(20);
   });
 
+  it('getOr makes a value once per key while it is held', () => {
+    const m = new GenerationalMemo<string, number>(10);
+    let made = 0;
+    const make = (k: string): number => (made++, k.length);
+    expect(m.getOr('abc', make)).toBe(3);
+    expect(m.getOr('abc', make)).toBe(3);
+    expect(m.getOr('de', make)).toBe(2);
+    expect(made).toBe(2);
+  });
+
   it('rejects a capacity below 2', () => {
     expect(() => new GenerationalMemo(1)).toThrow(RangeError);
   });
