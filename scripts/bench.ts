@@ -43,10 +43,12 @@ interface Flags {
   naiveSeconds: number;
   hostile: boolean;
   sizes: number[];
+  /** Runs of the floor and of the ledger audit per size (interleaved; the median is reported). */
+  repeat: number;
 }
 
 function parseFlags(argv: string[]): Flags {
-  const f: Flags = { skip1gb: false, skipAnalysis1gb: false, seed: 42, naiveSeconds: 60, hostile: true, sizes: [10, 100, 1024] };
+  const f: Flags = { skip1gb: false, skipAnalysis1gb: false, seed: 42, naiveSeconds: 60, hostile: true, sizes: [10, 100, 1024], repeat: 3 };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i]!;
     if (a === '--skip-1gb') f.skip1gb = true;
@@ -55,6 +57,7 @@ function parseFlags(argv: string[]): Flags {
     else if (a === '--seed') f.seed = Number(argv[++i]);
     else if (a === '--naive-seconds') f.naiveSeconds = Number(argv[++i]);
     else if (a === '--sizes') f.sizes = argv[++i]!.split(',').map(Number);
+    else if (a === '--repeat') f.repeat = Math.max(1, Number(argv[++i]));
     else throw new Error(`unknown flag ${a}`);
   }
   if (f.skip1gb) f.sizes = f.sizes.filter((s) => s < 1000);
@@ -271,6 +274,11 @@ async function countRecords(file: string): Promise<number> {
 
 // ---------------------------------------------------------------- table
 
+/** The run with the median wall time. */
+function median<T extends { ms: number }>(runs: T[]): T {
+  return [...runs].sort((a, b) => a.ms - b.ms)[Math.floor(runs.length / 2)]!;
+}
+
 const f1 = (x: number): string => (Number.isFinite(x) ? x.toFixed(1) : '–');
 const f2 = (x: number): string => (Number.isFinite(x) ? x.toFixed(2) : '–');
 
@@ -343,12 +351,18 @@ async function main(): Promise<void> {
     const file = await ensureLog(flags.seed, mb);
     const bytes = statSync(file).size;
     const records = await countRecords(file);
-    process.stderr.write(`bench: ${mb} MiB: floor…\n`);
-    const floor = await childMeasure('floor', file);
+    // The floor and the ledger audit alternate, so both see the same moments of a shared machine.
+    const floors: (ChildResult & { rssMb: number; cpuS: number })[] = [];
+    const audits: Measured[] = [];
+    for (let i = 0; i < flags.repeat; i++) {
+      process.stderr.write(`bench: ${mb} MiB: floor and audit --no-analysis, run ${i + 1} of ${flags.repeat}…\n`);
+      floors.push(await childMeasure('floor', file));
+      audits.push(await measure([process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']));
+    }
+    const floor = median(floors);
+    const auditNoAnalysis = median(audits);
     process.stderr.write(`bench: ${mb} MiB: naive…\n`);
     const naive = await childMeasure('naive', file, String(flags.naiveSeconds));
-    process.stderr.write(`bench: ${mb} MiB: audit --no-analysis…\n`);
-    const auditNoAnalysis = await measure([process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']);
     let auditOneThread: Measured = { ms: NaN, rssMb: NaN, cpuS: NaN, out: '', code: -1 };
     if (mb < 1000) {
       process.stderr.write(`bench: ${mb} MiB: audit --no-analysis, one thread…\n`);
@@ -399,6 +413,7 @@ async function main(): Promise<void> {
   say(table(head, body));
   say('');
   say('Audit rows run the CLI (`audit <log> --format json --out <tmp>`): above 8 MiB on worker threads (one per core), \'1 thread\' with SPILLWAY_AUDIT_WORKERS=0.');
+  say(`floor and the worker-thread "--no-analysis" rows: median of ${flags.repeat} runs, floor and audit alternating; the other rows: one run each.`);
   say('`*` naive stopped after the time cap: its MB/s is over the part it read (its cost per byte does not fall with size: no memo).');
   say('floor: read the bytes, split at newlines, decode and `JSON.parse` each line, one thread. naive: the floor plus gpt-tokenizer `countTokens` on every segment with no memo of any kind (its own cache of merged pieces switched off, as tiktoken has none). audit CPU s: user + system time of all threads.');
   const expNo = exponent(rows.map((r) => ({ size: r.bytes, ms: r.auditNoAnalysis.ms })));
