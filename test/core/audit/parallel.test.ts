@@ -115,6 +115,17 @@ describe('parallel audit = single-thread audit', () => {
     }, 120_000);
   }
 
+  it('a line over --max-line-bytes is reported the same way (line, column, code) in the workers', async () => {
+    const read = { maxLineBytes: 30_000 };
+    const single: string[] = [];
+    const a = await auditItems(readLog(bytesOf(edges), read), {}, { read, onLedgerJson: (j) => single.push(j) });
+    const chunks: Uint8Array[] = [];
+    const b = await auditFileParallel(asFile(edges), {}, { read, workerScript, workers: 2, batchBytes: 20_000, ledgerSeparator: ',\n', onLedgerBytes: (u) => chunks.push(Uint8Array.from(u)) });
+    expect(a.errors.map((e) => e.code)).toContain('line-too-long');
+    expect(JSON.stringify(b)).toBe(JSON.stringify(a));
+    expect(Buffer.concat(chunks).toString('utf8')).toBe(single.join(',\n'));
+  }, 120_000);
+
   it('workers share token counts: what one counted, the other does not count again', async () => {
     const stats: { hits: number; sharedHits?: number }[][] = [];
     await auditFileParallel(asFile(generated), {}, { workerScript, workers: 2, batchBytes: 20_000, onStats: (s) => stats.push(s), onLedgerJson: () => undefined });
