@@ -7,16 +7,14 @@
  *   npm run build && node test/webview/harness/run.mjs [log.jsonl ...]
  */
 import { chromium, type Browser, type Page } from 'playwright-core';
-import { existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readdirSync, writeFileSync } from 'node:fs';
 import { basename, join } from 'node:path';
+import { BASE, ROOT, routePanel } from './routes';
 import { auditedHost, syntheticHost, type Host } from './host';
 import { generateLog } from '../../../extension/core/sample/generator';
 import type { HostMessage, WebviewMessage } from '../../../extension/protocol/messages';
 
-const ROOT = process.cwd();
-const BASE = 'http://spillway.test';
 const OUT = join(ROOT, 'docs/screenshots');
-const HERE = join(ROOT, 'test/webview/harness');
 type Theme = 'dark' | 'light' | 'hc';
 const BODY_CLASS: Record<Theme, string> = { dark: 'vscode-dark', light: 'vscode-light', hc: 'vscode-high-contrast' };
 
@@ -70,14 +68,7 @@ async function inPageFirstPaint(browser: Browser, path: string, runs: number, re
   for (let i = 0; i < runs; i++) {
     const ctx = await browser.newContext({ viewport: { width: 820, height: 900 } });
     const page = await ctx.newPage();
-    await page.route(`${BASE}/**`, (route) => {
-      const name = new URL(route.request().url()).pathname.slice(1);
-      if (name === 'panel.html') return route.fulfill({ contentType: 'text/html', body: html('dark', 'fp', fake) });
-      if (name === 'main.js') return route.fulfill({ contentType: 'text/javascript', body: readFileSync(join(ROOT, 'dist/webview/main.js')) });
-      if (name === 'panel.css') return route.fulfill({ contentType: 'text/css', body: readFileSync(join(ROOT, 'dist/webview/panel.css')) });
-      if (name === 'theme-dark.css') return route.fulfill({ contentType: 'text/css', body: readFileSync(join(HERE, 'themes/dark.css')) });
-      return route.fulfill({ status: 404, body: '' });
-    });
+    await routePanel(page, () => html('dark', 'fp', fake));
     await page.goto(`${BASE}/panel.html`);
     values.push(await page.waitForFunction(() => (window as unknown as { __fp?: number }).__fp, undefined, { timeout: 15_000 }).then((h) => h.jsonValue() as Promise<number>));
     await ctx.close();
@@ -97,15 +88,7 @@ async function open(browser: Browser, host: Host, theme: Theme, width: number, s
   const ctx = await browser.newContext({ viewport: { width, height: 900 }, deviceScaleFactor: 1 });
   const page = await ctx.newPage();
   const nonce = 'harness' + Math.random().toString(36).slice(2);
-  await page.route(`${BASE}/**`, (route) => {
-    const name = new URL(route.request().url()).pathname.slice(1);
-    if (name === 'panel.html') return route.fulfill({ contentType: 'text/html', body: html(theme, nonce) });
-    if (name === 'main.js') return route.fulfill({ contentType: 'text/javascript', body: readFileSync(join(ROOT, 'dist/webview/main.js')) });
-    if (name === 'panel.css') return route.fulfill({ contentType: 'text/css', body: readFileSync(join(ROOT, 'dist/webview/panel.css')) });
-    const m = /^theme-(\w+)\.css$/.exec(name);
-    if (m) return route.fulfill({ contentType: 'text/css', body: readFileSync(join(HERE, 'themes', `${m[1]}.css`)) });
-    return route.fulfill({ status: 404, body: '' });
-  });
+  await routePanel(page, () => html(theme, nonce));
   await page.addInitScript(() => {
     const w = window as unknown as { __csp: string[] };
     w.__csp = [];

@@ -10,6 +10,7 @@
 import { chromium, type Page } from 'playwright-core';
 import { mkdirSync, readFileSync } from 'node:fs';
 import { basename, join } from 'node:path';
+import { BASE, ROOT, routePanel } from './routes';
 import { Accountant } from '../../../extension/core/tokens/accountant';
 import { auditRecord } from '../../../extension/core/audit/ledger';
 import { parseRecordLine } from '../../../extension/core/log/reader';
@@ -20,10 +21,7 @@ import { repackOutputName } from '../../../extension/core/view/repackForm';
 import { toTurnDetail } from '../../../extension/core/view/viewModels';
 import type { HostMessage, SweepView, WebviewMessage } from '../../../extension/protocol/messages';
 
-const ROOT = process.cwd();
-const BASE = 'http://spillway.test';
 const OUT = join(ROOT, 'docs/screenshots');
-const HERE = join(ROOT, 'test/webview/harness');
 type Theme = 'dark' | 'light';
 
 async function main(): Promise<void> {
@@ -94,15 +92,7 @@ async function openPanel(browser: import('playwright-core').Browser, theme: Them
 <body class="vscode-${theme}"><main id="app"></main>
 <script nonce="${nonce}">(() => { let state; const api = { postMessage: (m) => window.__spillwayHost(m), getState: () => state, setState: (s) => { state = s; } }; window.acquireVsCodeApi = () => api; })();</script>
 <script nonce="${nonce}" src="${BASE}/main.js"></script></body></html>`;
-  await page.route(`${BASE}/**`, (route) => {
-    const name = new URL(route.request().url()).pathname.slice(1);
-    if (name === 'panel.html') return route.fulfill({ contentType: 'text/html', body: html });
-    if (name === 'main.js') return route.fulfill({ contentType: 'text/javascript', body: readFileSync(join(ROOT, 'dist/webview/main.js')) });
-    if (name === 'panel.css') return route.fulfill({ contentType: 'text/css', body: readFileSync(join(ROOT, 'dist/webview/panel.css')) });
-    const m = /^theme-(\w+)\.css$/.exec(name);
-    if (m) return route.fulfill({ contentType: 'text/css', body: readFileSync(join(HERE, 'themes', `${m[1]}.css`)) });
-    return route.fulfill({ status: 404, body: '' });
-  });
+  await routePanel(page, () => html);
   await page.addInitScript(() => {
     const w = window as unknown as { __csp: string[] };
     w.__csp = [];
