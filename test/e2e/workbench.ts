@@ -45,6 +45,7 @@ export async function runCommand(page: Page, title: string, opts: { timeout?: nu
     try {
       await row.waitFor({ state: 'visible', timeout: 3000 });
       await row.click();
+      await paletteGone(page);
       return true;
     } catch {
       await page.keyboard.press('Escape');
@@ -55,6 +56,25 @@ export async function runCommand(page: Page, title: string, opts: { timeout?: nu
       await sleep(1000);
     }
   }
+}
+
+/**
+ * Waits until the command palette has closed or a command's own prompt has replaced it, so a caller
+ * never answers (or types into) the palette itself — a key pressed too early lands in the editor.
+ */
+async function paletteGone(page: Page, timeout = 10_000): Promise<void> {
+  await page
+    .waitForFunction(
+      () => {
+        const w = document.querySelector<HTMLElement>('.quick-input-widget');
+        if (!w || getComputedStyle(w).display === 'none') return true;
+        const input = w.querySelector<HTMLInputElement>('input.input');
+        return !input || !input.value.startsWith('>');
+      },
+      undefined,
+      { timeout },
+    )
+    .catch(() => undefined);
 }
 
 function exactText(s: string): RegExp {

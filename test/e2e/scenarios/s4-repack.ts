@@ -42,6 +42,11 @@ export const repack = {
         if (!(await widget.isVisible().catch(() => false))) break;
       }
       const title = ((await widget.locator('.quick-input-title, .quick-input-message').allInnerTexts()).join(' ') + ' ' + ((await widget.locator('input').first().getAttribute('placeholder')) ?? '')).trim();
+      // Still the command palette (the command has not opened its first prompt yet): wait, answer nothing.
+      if ((await widget.locator('input').first().inputValue().catch(() => '')).startsWith('>')) {
+        await sleep(500);
+        continue;
+      }
       const hasList = (await widget.locator('.quick-input-list .monaco-list-row').count()) > 0;
       if (!hasList || /budget/i.test(title)) {
         await widget.locator('input').first().fill(String(budget));
