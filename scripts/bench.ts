@@ -17,12 +17,15 @@
  */
 import { spawn } from 'node:child_process';
 import { copyFileSync, createReadStream, createWriteStream, existsSync, mkdirSync, readFileSync, renameSync, rmSync, statSync, writeFileSync } from 'node:fs';
-import { cpus, loadavg, totalmem, tmpdir } from 'node:os';
+import { availableParallelism, cpus, loadavg, totalmem, tmpdir } from 'node:os';
 import { join, resolve } from 'node:path';
 import { once } from 'node:events';
 import { generateLog } from '../extension/core/sample/generator';
+import { PARALLEL_MIN_BYTES } from '../extension/core/audit/parallel';
 
 const MB = 1024 * 1024;
+/** Worker threads of the parallel rows: what the CLI starts by default (one per core, at most 4). */
+const WORKERS = Math.min(4, availableParallelism());
 const ROOT = resolve(__dirname, '..');
 let CLI = join(ROOT, 'dist', 'cli.js');
 
@@ -199,7 +202,7 @@ async function childMemo(file: string): Promise<ChildResult> {
   return { ms: performance.now() - t0, bytes: statSync(file).size, records, extra: { ...acct.stats() } };
 }
 
-/** Memo statistics of each worker of the parallel audit (what the CLI runs above 8 MiB). */
+/** Memo statistics of each worker of the parallel audit (what the CLI runs above PARALLEL_MIN_BYTES). */
 async function childMemoParallel(file: string): Promise<ChildResult> {
   const { auditFileParallel } = await import('../extension/core/audit/parallel');
   const t0 = performance.now();
@@ -329,6 +332,7 @@ async function main(): Promise<void> {
     audit: Measured;
     auditNoAnalysis: Measured;
     auditOneThread: Measured;
+    auditOneThreadAnalysis: Measured;
     load: string;
   }
   const rows: Row[] = [];
@@ -345,7 +349,7 @@ async function main(): Promise<void> {
     return t.sort((a, b) => a - b)[1]!;
   };
   process.stderr.write('bench: start-up…\n');
-  const start = { parallel: await startup(2, false), single: await startup(0, false), parallelAnalysis: await startup(2, true) };
+  const start = { parallel: await startup(WORKERS, false), single: await startup(0, false), parallelAnalysis: await startup(WORKERS, true) };
   rmSync(oneRecord, { force: true });
   for (const mb of flags.sizes) {
     const file = await ensureLog(flags.seed, mb);
@@ -357,7 +361,7 @@ async function main(): Promise<void> {
     for (let i = 0; i < flags.repeat; i++) {
       process.stderr.write(`bench: ${mb} MiB: floor and audit --no-analysis, run ${i + 1} of ${flags.repeat}…\n`);
       floors.push(await childMeasure('floor', file));
-      audits.push(await measure([process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']));
+      audits.push(await measure(['env', `SPILLWAY_AUDIT_WORKERS=${WORKERS}`, process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']));
     }
     const floor = median(floors);
     const auditNoAnalysis = median(audits);
@@ -368,13 +372,18 @@ async function main(): Promise<void> {
       process.stderr.write(`bench: ${mb} MiB: audit --no-analysis, one thread…\n`);
       auditOneThread = await measure(['env', 'SPILLWAY_AUDIT_WORKERS=0', process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']);
     }
+    let auditOneThreadAnalysis: Measured = { ms: NaN, rssMb: NaN, cpuS: NaN, out: '', code: -1 };
+    if (mb < 1000) {
+      process.stderr.write(`bench: ${mb} MiB: audit (with analysis), one thread…\n`);
+      auditOneThreadAnalysis = await measure(['env', 'SPILLWAY_AUDIT_WORKERS=0', process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet']);
+    }
     let audit: Measured = { ms: NaN, rssMb: NaN, cpuS: NaN, out: '', code: -1 };
     if (!(mb >= 1000 && flags.skipAnalysis1gb)) {
       process.stderr.write(`bench: ${mb} MiB: audit (with analysis)…\n`);
-      audit = await measure([process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet']);
+      audit = await measure(['env', `SPILLWAY_AUDIT_WORKERS=${WORKERS}`, process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet']);
     }
     rmSync(tmpOut, { force: true });
-    rows.push({ mb, file, bytes, records, floor, naive, audit, auditNoAnalysis, auditOneThread, load: load() });
+    rows.push({ mb, file, bytes, records, floor, naive, audit, auditNoAnalysis, auditOneThread, auditOneThreadAnalysis, load: load() });
   }
 
   const mbps = (bytes: number, ms: number): number => bytes / MB / (ms / 1000);
@@ -382,8 +391,9 @@ async function main(): Promise<void> {
   const body: string[][] = [];
   for (const [label, pick] of [
     ['--no-analysis, 1 thread', (r: Row) => r.auditOneThread],
-    ['--no-analysis', (r: Row) => r.auditNoAnalysis],
-    ['with analysis', (r: Row) => r.audit],
+    [`--no-analysis, ${WORKERS} workers`, (r: Row) => r.auditNoAnalysis],
+    ['with analysis, 1 thread', (r: Row) => r.auditOneThreadAnalysis],
+    [`with analysis, ${WORKERS} workers`, (r: Row) => r.audit],
   ] as const) {
     for (const r of rows) {
       if (pick(r).code === -1) continue;
@@ -412,7 +422,7 @@ async function main(): Promise<void> {
   say('');
   say(table(head, body));
   say('');
-  say('Audit rows run the CLI (`audit <log> --format json --out <tmp>`): above 8 MiB on worker threads (one per core), \'1 thread\' with SPILLWAY_AUDIT_WORKERS=0.');
+  say(`Audit rows run the CLI (\`audit <log> --format json --out <tmp>\`) on worker threads (SPILLWAY_AUDIT_WORKERS=${WORKERS}, one per core; the CLI's default above ${PARALLEL_MIN_BYTES / MB} MiB), '1 thread' rows with SPILLWAY_AUDIT_WORKERS=0 (its default below).`);
   say(`floor and the worker-thread "--no-analysis" rows: median of ${flags.repeat} runs, floor and audit alternating; the other rows: one run each.`);
   say('`*` naive stopped after the time cap: its MB/s is over the part it read (its cost per byte does not fall with size: no memo).');
   say('floor: read the bytes, split at newlines, decode and `JSON.parse` each line, one thread. naive: the floor plus gpt-tokenizer `countTokens` on every segment with no memo of any kind (its own cache of merged pieces switched off, as tiktoken has none). audit CPU s: user + system time of all threads.');
@@ -423,7 +433,7 @@ async function main(): Promise<void> {
   say(`Time-vs-size exponent (least squares on log t vs log bytes over ${rows.length} sizes): audit --no-analysis ${f2(expNo)}, audit with analysis ${f2(expAn)}, floor ${f2(expFloor)}.`);
   say(`Audit times (s): ${rows.map((r) => `${r.mb} MiB ${f1(r.auditNoAnalysis.ms / 1000)} / ${f1(r.audit.ms / 1000)}`).join('; ')} (no analysis / analysis).`);
   say(
-    `Start-up (the same CLI on a one-record log, median of 3; included in every audit row): ${f2(start.parallel / 1000)} s on 2 workers, ${f2(start.single / 1000)} s on one thread, ${f2(start.parallelAnalysis / 1000)} s on 2 workers with the analysis.`,
+    `Start-up (the same CLI on a one-record log, median of 3; included in every audit row): ${f2(start.parallel / 1000)} s on ${WORKERS} workers, ${f2(start.single / 1000)} s on one thread, ${f2(start.parallelAnalysis / 1000)} s on ${WORKERS} workers with the analysis.`,
   );
 
   // ------------------------------------------------------------ targets
