@@ -8,7 +8,8 @@ import type { ReadItem } from '../log/reader';
 import type { Ledger, SegmentLedger, TurnState } from '../audit/types';
 import { Accountant } from '../tokens/accountant';
 import { buildLedger, LedgerError, resolveEncoding } from '../audit/ledger';
-import { evidenceOf, replySupport, type EvidenceBasis } from './evidence';
+import { evidenceOf, passageCounts, replyCounts, replySupportOf, type EvidenceBasis } from './evidence';
+import type { SquadCounts } from '../analysis/textfacts';
 import { CostAccumulator } from './cost';
 import type { Prices } from './types';
 
@@ -117,7 +118,8 @@ export function compareLedgers(a: Ledger, b: Ledger, record: LogRecord, extra: {
   const historyGained = [...ha].filter(([k, v]) => !v && hb.get(k) === true).map(([k]) => k);
 
   let evidence: EvidenceRetention | null = null;
-  const ev = evidenceOf(record);
+  const reply = replyCounts(record.reply);
+  const ev = evidenceOf(record, reply);
   if (ev) {
     const byIdA = new Map(a.segments.map((s) => [s.id, s]));
     let tokensA = 0;
@@ -132,9 +134,9 @@ export function compareLedgers(a: Ledger, b: Ledger, record: LogRecord, extra: {
     }
     evidence = { basis: ev.basis, ids: ev.ids, tokensA, keptA, tokensB, keptB, retentionA: tokensA === 0 ? 1 : keptA / tokensA, retentionB: tokensB === 0 ? 1 : keptB / tokensB };
   }
-  const sentTexts = (l: Ledger): string[] => l.segments.filter((s) => s.kind === 'passage' && s.fate !== 'dropped').map((s) => keptText(record, s));
-  const ra = replySupport(record.reply, sentTexts(a));
-  const rb = replySupport(record.reply, sentTexts(b));
+  const sent = (l: Ledger): SquadCounts[] => l.segments.filter((s) => s.kind === 'passage' && s.fate !== 'dropped').map((s) => passageCounts(keptText(record, s), s.fate === 'kept'));
+  const ra = replySupportOf(reply, sent(a));
+  const rb = replySupportOf(reply, sent(b));
   const support = ra === null || rb === null ? null : { a: ra, b: rb };
 
   const EPS = 1e-12;
