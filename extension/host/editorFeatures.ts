@@ -1,6 +1,6 @@
 /** CodeLens, hover, diagnostics and the status bar item: thin adapters over the view builders. */
 import * as vscode from 'vscode';
-import { recordAtLine } from '../core/view/audited';
+import { recordAtLine, spillwayRecordAt } from '../core/view/audited';
 import { codeLensTitle, codeLensTooltip, logSummary, statusText, statusTooltip } from '../core/view/codeLens';
 import { issueDiagnostic, logDiagnostics, onlyLooksLikeLog, recordDiagnostics, type DiagnosticDescriptor } from '../core/view/diagnostics';
 import { groundingDiagnostics } from '../core/view/grounding';
@@ -61,9 +61,7 @@ export class SegmentHover implements vscode.HoverProvider {
   constructor(private readonly sessions: LogSessions) {}
 
   provideHover(doc: vscode.TextDocument, pos: vscode.Position): vscode.Hover | undefined {
-    const session = this.sessions.get(doc.uri);
-    if (!session?.log || session.format !== 'spillway') return undefined;
-    const rec = recordAtLine(session.log, pos.line + 1);
+    const rec = spillwayRecordAt(this.sessions.get(doc.uri), pos.line);
     if (!rec) return undefined;
     const lineText = doc.lineAt(pos.line).text;
     const map = locateRecordLine(lineText);

@@ -4,7 +4,7 @@
  * core/view/grounding.ts; VS Code shows it beside the segment hover.
  */
 import * as vscode from 'vscode';
-import { recordAtLine } from '../core/view/audited';
+import { spillwayRecordAt } from '../core/view/audited';
 import { locateGroundingLine, passageGroundingRows, sentenceAt, sentenceHoverRows, type GroundingHoverRow } from '../core/view/grounding';
 import { decodedOffsetAt, jsonStringColumns } from '../core/view/jsonColumns';
 import type { LogSessions } from './sessions';
@@ -26,10 +26,7 @@ export class GroundingHover implements vscode.HoverProvider {
   constructor(private readonly sessions: LogSessions) {}
 
   provideHover(doc: vscode.TextDocument, pos: vscode.Position): vscode.Hover | undefined {
-    const session = this.sessions.get(doc.uri);
-    if (!session?.log || session.format !== 'spillway') return undefined;
-    const rec = recordAtLine(session.log, pos.line + 1);
-    const a = rec?.ledger.analysis;
+    const a = spillwayRecordAt(this.sessions.get(doc.uri), pos.line)?.ledger.analysis;
     if (!a) return undefined;
     const lineText = doc.lineAt(pos.line).text;
     const map = locateGroundingLine(lineText);

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { buildOverview, conversationRows, MAX_PAGE, toTurnDetail, toTurnRow, turnPage } from '../../extension/core/view/viewModels';
 import { findProblemTurn, ALL_CHECKS, rank1Passage, lostEvidence } from '../../extension/core/view/problems';
-import { indexOfLine, recordAtLine, firstAfter } from '../../extension/core/view/audited';
+import { indexOfLine, recordAtLine, firstAfter, spillwayRecordAt } from '../../extension/core/view/audited';
 import { audited, ledger, record, seg } from './ledgerFixture';
 
 describe('toTurnRow / toTurnDetail', () => {
@@ -92,6 +92,12 @@ describe('record lookup and problem navigation', () => {
     expect(firstAfter(log.records, 4)).toBe(3);
     expect(firstAfter(log.records, 0)).toBe(0);
     expect(firstAfter(log.records, 7)).toBe(5);
+  });
+  it('hovers find the record under a 0-based editor line, in Spillway-format logs only', () => {
+    expect(spillwayRecordAt({ format: 'spillway', log }, 6)?.ledger.used).toBe(7167); // editor line 6 = log line 7
+    expect(spillwayRecordAt({ format: 'chat', log }, 6)).toBeUndefined();
+    expect(spillwayRecordAt({ format: 'spillway' }, 6)).toBeUndefined();
+    expect(spillwayRecordAt(undefined, 6)).toBeUndefined();
   });
   it('goes to the next and previous problem turn, wrapping around', () => {
     // Problems: line 2 (rank-1 clipped), 4 (over budget), 5 (rank-1 dropped).

@@ -40,6 +40,15 @@ export function recordAtLine(log: AuditedLog, line: number): AuditedRecord | und
   return i < 0 ? undefined : log.records[i];
 }
 
+/**
+ * The record under 0-based editor line `line` of a log the editor shows in Spillway's own format (an
+ * imported chat or OTLP log shows other JSON, so hovers that read the line's raw text skip it).
+ */
+export function spillwayRecordAt(session: { log?: AuditedLog | undefined; format: string } | undefined, line: number): AuditedRecord | undefined {
+  if (!session?.log || session.format !== 'spillway') return undefined;
+  return recordAtLine(session.log, line + 1);
+}
+
 /** Index of the first record whose line is > `line` (records.length when none). */
 export function firstAfter(records: readonly AuditedRecord[], line: number): number {
   let lo = 0;
