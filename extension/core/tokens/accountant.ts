@@ -16,7 +16,7 @@ let hasherPromise: Promise<Hasher> | undefined;
 const SHORT_KEY = 48;
 /** Conversations whose last record is kept for countSegments (each holds references to one record's texts). */
 const CARRY_CONVERSATIONS = 2048;
-/** Texts shorter than this (roles, names) use a small map of their own. */
+/** Texts shorter than this (roles, names) use a small memo of their own. */
 const TINY = 16;
 const TINY_ENTRIES = 4096;
 /** Token-id arrays kept per encoding (a few kB each: bounded at about 16 MB for passages of ~500 tokens). */
@@ -32,18 +32,27 @@ export interface AccountantStats {
   sharedHits?: number;
 }
 
+/** What the accountant keeps per encoding, created when the encoder is loaded. */
+interface PerEncoding {
+  encoder: Encoder;
+  /** Roles, names and other very short texts, keyed by themselves: small enough to stay in the CPU cache. */
+  tiny: GenerationalMemo<string, number>;
+  /** Texts shorter than SHORT_KEY, keyed by themselves. */
+  short: GenerationalMemo<string, number>;
+  /** Longer texts, keyed by hash and length (see `key`). */
+  long: GenerationalMemo<string, number>;
+  /** Token ids of long texts (see `encode`). */
+  ids: GenerationalMemo<string, readonly number[]>;
+}
+
 export class Accountant {
-  /** Per encoding: short texts keyed by themselves, long ones by hash and length (see `key`). */
-  private readonly memos = new Map<EncodingName, { short: GenerationalMemo<string, number>; long: GenerationalMemo<string, number> }>();
-  private readonly encoders = new Map<EncodingName, Encoder>();
+  private readonly perEncoding = new Map<EncodingName, PerEncoding>();
   private hits = 0;
   private misses = 0;
   private encodedChars = 0;
   private sharedHits = 0;
-  private readonly tiny = new Map<EncodingName, Map<string, number>>();
   /** Per encoding and conversation, the last record's segment texts and counts (see countSegments). */
   private readonly carry = new GenerationalMemo<string, { index: Map<string, number>; texts: string[]; counts: number[] }>(CARRY_CONVERSATIONS);
-  private readonly idMemos = new Map<EncodingName, GenerationalMemo<string, readonly number[]>>();
 
   private constructor(
     private readonly hasher: Hasher,
@@ -59,18 +68,29 @@ export class Accountant {
 
   /** Loads (once) and returns the encoder; counting needs it loaded first. */
   async encoder(name: EncodingName): Promise<Encoder> {
-    let e = this.encoders.get(name);
-    if (!e) {
-      e = await loadEncoder(name);
-      this.encoders.set(name, e);
-    }
+    const have = this.perEncoding.get(name);
+    if (have) return have.encoder;
+    const encoder = await loadEncoder(name);
+    // Another caller may have loaded it while this one awaited: keep the first memos.
+    const e = this.perEncoding.get(name) ?? {
+      encoder,
+      tiny: new GenerationalMemo<string, number>(TINY_ENTRIES),
+      short: new GenerationalMemo<string, number>(this.memoEntries),
+      long: new GenerationalMemo<string, number>(this.memoEntries),
+      ids: new GenerationalMemo<string, readonly number[]>(ID_MEMO_ENTRIES),
+    };
+    this.perEncoding.set(name, e);
+    return e.encoder;
+  }
+
+  private loaded(name: EncodingName): PerEncoding {
+    const e = this.perEncoding.get(name);
+    if (!e) throw new Error(`encoder ${name} not loaded: await accountant.encoder('${name}') first`);
     return e;
   }
 
   loadedEncoder(name: EncodingName): Encoder {
-    const e = this.encoders.get(name);
-    if (!e) throw new Error(`encoder ${name} not loaded: await accountant.encoder('${name}') first`);
-    return e;
+    return this.loaded(name).encoder;
   }
 
   /** The memo key of a text: itself when short, else 16 hex digits of its hash, ':' and its length. */
@@ -81,13 +101,8 @@ export class Accountant {
   /** Exact token count of `text`, memoised. The encoder must have been loaded with `encoder()`. */
   count(name: EncodingName, text: string): number {
     if (text.length === 0) return 0;
-    if (text.length < TINY) return this.countTiny(name, text);
-    let memos = this.memos.get(name);
-    if (!memos) {
-      memos = { short: new GenerationalMemo<string, number>(this.memoEntries), long: new GenerationalMemo<string, number>(this.memoEntries) };
-      this.memos.set(name, memos);
-    }
-    const memo = text.length < SHORT_KEY ? memos.short : memos.long;
+    const e = this.loaded(name);
+    const memo = text.length < TINY ? e.tiny : text.length < SHORT_KEY ? e.short : e.long;
     const k = this.key(text);
     const hit = memo.get(k);
     if (hit !== undefined) {
@@ -106,7 +121,7 @@ export class Accountant {
     }
     this.misses++;
     this.encodedChars += text.length;
-    const n = this.loadedEncoder(name).count(text);
+    const n = e.encoder.count(text);
     memo.set(k, n);
     sh?.set(name, hi, lo, text.length, n);
     return n;
@@ -143,53 +158,18 @@ export class Accountant {
   }
 
   /**
-   * Roles, names and other very short texts: asked for dozens of times per record, from a map small
-   * enough to stay in the CPU cache (cleared if a log has thousands of distinct ones).
-   */
-  private countTiny(name: EncodingName, text: string): number {
-    let tiny = this.tiny.get(name);
-    if (!tiny) {
-      tiny = new Map();
-      this.tiny.set(name, tiny);
-    }
-    const hit = tiny.get(text);
-    if (hit !== undefined) {
-      this.hits++;
-      return hit;
-    }
-    this.misses++;
-    this.encodedChars += text.length;
-    const n = this.loadedEncoder(name).count(text);
-    if (tiny.size >= TINY_ENTRIES) tiny.clear();
-    tiny.set(text, n);
-    return n;
-  }
-
-  /**
    * The token ids of `text` (for cut points), memoised for long texts: a passage clipped in one turn
    * is usually clipped again in later ones. Callers must not modify the array.
    */
   encode(name: EncodingName, text: string): readonly number[] {
-    const enc = this.loadedEncoder(name);
-    if (text.length < SHORT_KEY) return enc.encode(text);
-    let memo = this.idMemos.get(name);
-    if (!memo) {
-      memo = new GenerationalMemo<string, readonly number[]>(ID_MEMO_ENTRIES);
-      this.idMemos.set(name, memo);
-    }
-    const k = this.key(text);
-    let ids = memo.get(k);
-    if (!ids) {
-      ids = enc.encode(text);
-      memo.set(k, ids);
-    }
-    return ids;
+    const e = this.loaded(name);
+    if (text.length < SHORT_KEY) return e.encoder.encode(text);
+    return e.ids.getOr(this.key(text), () => e.encoder.encode(text));
   }
 
   stats(): AccountantStats {
     let entries = 0;
-    for (const m of this.memos.values()) entries += m.short.size + m.long.size;
-    for (const m of this.tiny.values()) entries += m.size;
+    for (const e of this.perEncoding.values()) entries += e.tiny.size + e.short.size + e.long.size;
     const out: AccountantStats = { hits: this.hits, misses: this.misses, entries, encodedChars: this.encodedChars };
     if (this.shared) out.sharedHits = this.sharedHits;
     return out;
