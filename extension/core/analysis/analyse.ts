@@ -5,13 +5,12 @@
 import { JOINER, type Fate, type LogRecord, type Segment } from '../log/types';
 import type { Ledger } from '../audit/types';
 import { bm25Scorer, kendallTauB, ranksByScore } from './bm25';
-import { countTokens, overlapF1 } from './f1';
-import { squadTokens } from './normalize';
+import { overlapF1 } from './f1';
 import { positionCheck } from './position';
 import { sentenceSupport, type SupportPart } from './sentences';
 import { nearDuplicates } from './shingles';
 import { ageInDays, isStale, parseIsoTime } from './staleness';
-import { plainTexts, sharedTexts, type TextSource } from './textfacts';
+import { joinedSquad, plainTexts, sharedTexts, type SquadCounts, type TextSource } from './textfacts';
 import type {
   AnalysisSettings,
   AnalysisSummary,
@@ -128,12 +127,8 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
   for (const sentence of sentences) counts[sentence.label]++;
 
   // --- Knowledge F1 -----------------------------------------------------------------------
-  const replyTokens = squadTokens(reply);
-  const replyCounts = countTokens(replyTokens);
-  const f1Against = (text: string, source = texts): number => {
-    const t = source.squad(text);
-    return overlapF1(replyCounts, replyTokens.length, t.counts, t.length).f1;
-  };
+  const replySquad = plainTexts.squad(reply);
+  const f1Of = (t: SquadCounts): number => overlapF1(replySquad.counts, replySquad.length, t.counts, t.length).f1;
 
   // --- BM25+ ------------------------------------------------------------------------------
   const queryText = joined.filter((j) => j.seg.kind === 'query').map((j) => j.seg.text).join(JOINER);
@@ -171,8 +166,9 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
       fate: j.fate,
       keptTokens: j.keptTokens,
       position: sentPosition.get(j) ?? null,
-      f1: hasReply ? f1Against(j.seg.text) : 0,
-      keptF1: hasReply && j.keptText !== '' ? f1Against(j.keptText) : 0,
+      f1: hasReply ? f1Of(texts.squad(j.seg.text)) : 0,
+      // A clipped prefix is a one-off text: computed without the memo.
+      keptF1: hasReply && j.keptText !== '' ? f1Of((j.fate === 'kept' ? texts : plainTexts).squad(j.keptText)) : 0,
       bm25Query: queryScores ? queryScoreList[i]! : null,
       bm25QueryRank: queryScores ? queryRanks[i]! : null,
       bm25Reply: replyScores ? replyScores.get(String(i))! : null,
@@ -194,8 +190,8 @@ export function analyseTurn(record: LogRecord, ledger: Ledger, settings: Partial
       ids,
       missing: ids.filter((_, i) => found[i] === undefined),
       cut: present.filter((j) => j.fate !== 'kept').map((j) => ({ id: j.seg.id, fate: j.fate })),
-      // A one-off text: computed without the memo.
-      f1: hasReply && present.length > 0 ? f1Against(present.map((j) => j.seg.text).join(' '), plainTexts) : null,
+      // The evidence passages joined with spaces, from each passage's memoised counts.
+      f1: hasReply && present.length > 0 ? f1Of(joinedSquad(present.map((j) => texts.squad(j.seg.text)))) : null,
     };
     if (evidence.missing.length > 0) notes.push(`evidence names no passage of this record: ${evidence.missing.join(', ')}`);
   }

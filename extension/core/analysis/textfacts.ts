@@ -33,6 +33,23 @@ const squadOf = (text: string): SquadCounts => {
   return { counts: countTokens(tokens), length: tokens.length };
 };
 
+/**
+ * SQuAD counts of texts joined with spaces, from each text's own counts (which a memo can serve):
+ * SQuAD normalisation (lower case, ASCII punctuation and articles removed, whitespace split) never
+ * acts across a space, so the joined text's tokens are each text's tokens in turn (checked against
+ * the joined text in test/core/analysis/textfacts.test.ts and, property-based, test/core/repack/evidence.test.ts).
+ */
+export function joinedSquad(parts: readonly SquadCounts[]): SquadCounts {
+  if (parts.length === 1) return parts[0]!;
+  const counts: TokenCounts = new Map();
+  let length = 0;
+  for (const p of parts) {
+    length += p.length;
+    for (const [t, n] of p.counts) counts.set(t, (counts.get(t) ?? 0) + n);
+  }
+  return { counts, length };
+}
+
 /** No memo: every call recomputes. */
 export const plainTexts: TextSource = {
   ...plainShingleTexts,

@@ -5,8 +5,8 @@
  * prompt order; none when every F1 is 0).
  */
 import type { LogRecord } from '../log/types';
-import { overlapF1, type TokenCounts } from '../analysis/f1';
-import { plainTexts, sharedTexts, type SquadCounts } from '../analysis/textfacts';
+import { overlapF1 } from '../analysis/f1';
+import { joinedSquad, plainTexts, sharedTexts, type SquadCounts } from '../analysis/textfacts';
 
 export type EvidenceBasis = 'evidence' | 'best-passage';
 
@@ -47,23 +47,13 @@ export function passageCounts(text: string, whole: boolean): SquadCounts {
  * occur in the text of the passages that were sent — the precision side of token-overlap F1, in the
  * spirit of K-Precision (Adlakha et al., TACL 2024). null when the reply is empty.
  *
- * The passages' tokens are those of their texts joined with spaces: SQuAD normalisation (lower case,
- * ASCII punctuation removed, articles removed as whole words, whitespace split) never acts across a
- * space, so the joined text's tokens are each text's tokens in turn, and their counts add up
- * (checked against the joined text in test/core/repack/evidence.test.ts).
+ * The passages' tokens are those of their texts joined with spaces (`joinedSquad`).
  */
 export function replySupportOf(reply: SquadCounts, sent: readonly SquadCounts[]): number | null {
   if (reply.length === 0) return null;
-  let length = 0;
-  for (const p of sent) length += p.length;
-  if (length === 0) return 0;
-  let counts: TokenCounts;
-  if (sent.length === 1) counts = sent[0]!.counts;
-  else {
-    counts = new Map();
-    for (const p of sent) for (const [t, n] of p.counts) counts.set(t, (counts.get(t) ?? 0) + n);
-  }
-  return overlapF1(reply.counts, reply.length, counts, length).precision;
+  const passages = joinedSquad(sent);
+  if (passages.length === 0) return 0;
+  return overlapF1(reply.counts, reply.length, passages.counts, passages.length).precision;
 }
 
 /** Reply support from texts (see replySupportOf). */

@@ -1,6 +1,6 @@
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadShingleHasher } from '../../../extension/core/analysis/shingles';
-import { memoTexts, plainTexts, type TextSource } from '../../../extension/core/analysis/textfacts';
+import { joinedSquad, memoTexts, plainTexts, type TextSource } from '../../../extension/core/analysis/textfacts';
 
 const TEXTS = [
   'The Night Bus, the night BUS: runs hourly.',
@@ -80,5 +80,23 @@ describe('text facts', () => {
 
   it('a bad shingle size still throws through the memo', () => {
     expect(() => memoTexts(4).shingles('a b c', 0)).toThrow(/positive integer/);
+  });
+
+  it('joinedSquad: counts of texts joined with spaces, from each text’s counts', () => {
+    // "The Night Bus, the night BUS: runs hourly." → [night, bus, night, bus, runs, hourly]
+    // "one two" → [one, two]; joined: 8 tokens, night ×2, bus ×2.
+    const j = joinedSquad([plainTexts.squad(TEXTS[0]!), plainTexts.squad('one two')]);
+    expect(j.length).toBe(8);
+    expect(j.counts.get('night')).toBe(2);
+    expect(j.counts.get('bus')).toBe(2);
+    expect(j.counts.get('two')).toBe(1);
+    // The same as normalising the joined text, for every prefix of the sample texts.
+    for (let n = 0; n <= TEXTS.length; n++) {
+      const parts = TEXTS.slice(0, n);
+      const whole = plainTexts.squad(parts.join(' '));
+      const got = joinedSquad(parts.map((t) => plainTexts.squad(t)));
+      expect(got.length).toBe(whole.length);
+      expect(new Map(got.counts)).toEqual(new Map(whole.counts));
+    }
   });
 });
