@@ -20,7 +20,12 @@ export async function openLog(path: string): Promise<{ chunks: AsyncIterable<Uin
     if (e instanceof UsageError) throw e;
     throw new UsageError(`cannot read ${path}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}`);
   }
-  return { chunks: createReadStream(path, { highWaterMark: 1 << 20 }), size };
+  return { chunks: fileChunks(path), size };
+}
+
+/** The file's bytes in 1 MiB chunks. It is opened only when reading starts: the parallel audit's workers read the file themselves. */
+async function* fileChunks(path: string): AsyncGenerator<Uint8Array> {
+  yield* createReadStream(path, { highWaterMark: 1 << 20 }) as AsyncIterable<Uint8Array>;
 }
 
 /**

@@ -82,10 +82,7 @@ async function auditStream(file: string, from: string | undefined, chunks: Async
   if (workers !== 0 && (from ?? 'auto') !== 'chat' && (from ?? 'auto') !== 'otlp' && existsSync(workerScript)) {
     const format = (from ?? 'auto') === 'auto' ? (detectFormat(await headLines(file)) ?? 'spillway') : from;
     // Identical report to the single-thread path (test/core/audit/parallel.test.ts), on every core.
-    if (format === 'spillway') {
-      (chunks as { destroy?: () => void }).destroy?.(); // the workers read the file themselves
-      return auditFileParallel(file, opts, { ...ctx, ...extras, workerScript, ...(workers === undefined ? {} : { workers }) });
-    }
+    if (format === 'spillway') return auditFileParallel(file, opts, { ...ctx, ...extras, workerScript, ...(workers === undefined ? {} : { workers }) });
   }
   return logItems(file, from, chunks, ctx.read).then((items) => auditItems(items, opts, ctx));
 }
