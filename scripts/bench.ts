@@ -337,13 +337,16 @@ async function main(): Promise<void> {
   }
   const rows: Row[] = [];
   const tmpOut = join(tmpdir(), `spillway-bench-${process.pid}.audit.json`);
+  /** `spillway audit <log> --format json` on `workers` threads (0: one thread), as its own process. */
+  const auditCli = (log: string, workers: number, analysis: boolean): Promise<Measured> =>
+    measure(['env', `SPILLWAY_AUDIT_WORKERS=${workers}`, process.execPath, CLI, 'audit', log, '--format', 'json', '--out', tmpOut, '--quiet', ...(analysis ? [] : ['--no-analysis'])]);
   // Start-up: the same CLI on a one-record log (process start, bundle, encoder, workers), median of 3.
   const oneRecord = join(tmpdir(), `spillway-bench-${process.pid}.one.jsonl`);
   writeFileSync(oneRecord, [...generateLog({ seed: flags.seed, turns: 1, malformedRate: 0 })].join('\n') + '\n');
   const startup = async (workers: number, analysis: boolean): Promise<number> => {
     const t: number[] = [];
     for (let i = 0; i < 3; i++) {
-      const m = await measure(['env', `SPILLWAY_AUDIT_WORKERS=${workers}`, process.execPath, CLI, 'audit', oneRecord, '--format', 'json', '--out', tmpOut, '--quiet', ...(analysis ? [] : ['--no-analysis'])]);
+      const m = await auditCli(oneRecord, workers, analysis);
       t.push(m.ms);
     }
     return t.sort((a, b) => a - b)[1]!;
@@ -361,7 +364,7 @@ async function main(): Promise<void> {
     for (let i = 0; i < flags.repeat; i++) {
       process.stderr.write(`bench: ${mb} MiB: floor and audit --no-analysis, run ${i + 1} of ${flags.repeat}…\n`);
       floors.push(await childMeasure('floor', file));
-      audits.push(await measure(['env', `SPILLWAY_AUDIT_WORKERS=${WORKERS}`, process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']));
+      audits.push(await auditCli(file, WORKERS, false));
     }
     const floor = median(floors);
     const auditNoAnalysis = median(audits);
@@ -370,17 +373,17 @@ async function main(): Promise<void> {
     let auditOneThread: Measured = { ms: NaN, rssMb: NaN, cpuS: NaN, out: '', code: -1 };
     if (mb < 1000) {
       process.stderr.write(`bench: ${mb} MiB: audit --no-analysis, one thread…\n`);
-      auditOneThread = await measure(['env', 'SPILLWAY_AUDIT_WORKERS=0', process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet', '--no-analysis']);
+      auditOneThread = await auditCli(file, 0, false);
     }
     let auditOneThreadAnalysis: Measured = { ms: NaN, rssMb: NaN, cpuS: NaN, out: '', code: -1 };
     if (mb < 1000) {
       process.stderr.write(`bench: ${mb} MiB: audit (with analysis), one thread…\n`);
-      auditOneThreadAnalysis = await measure(['env', 'SPILLWAY_AUDIT_WORKERS=0', process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet']);
+      auditOneThreadAnalysis = await auditCli(file, 0, true);
     }
     let audit: Measured = { ms: NaN, rssMb: NaN, cpuS: NaN, out: '', code: -1 };
     if (!(mb >= 1000 && flags.skipAnalysis1gb)) {
       process.stderr.write(`bench: ${mb} MiB: audit (with analysis)…\n`);
-      audit = await measure(['env', `SPILLWAY_AUDIT_WORKERS=${WORKERS}`, process.execPath, CLI, 'audit', file, '--format', 'json', '--out', tmpOut, '--quiet']);
+      audit = await auditCli(file, WORKERS, true);
     }
     rmSync(tmpOut, { force: true });
     rows.push({ mb, file, bytes, records, floor, naive, audit, auditNoAnalysis, auditOneThread, auditOneThreadAnalysis, load: load() });
