@@ -161,14 +161,19 @@ describe('repackLog (stand-in vscode, real disk, real core)', () => {
     expect(readdirSync(dir).filter((f) => f.endsWith('.tmp'))).toEqual([]);
   });
 
-  it('cancelled (here at the last progress report, after the core’s last check): no output, no temp file, the source untouched', async () => {
-    const before = readFileSync(src);
+  /** Re-packs to 512, cancelling at the first progress report: nothing written, the source as it was. */
+  async function cancelAtFirstProgress(before: Buffer): Promise<void> {
     ui.inputs.push('512');
     ui.cancelAfterFirstProgress = true;
     expect(await run().go()).toBeUndefined();
     expect(readdirSync(dir)).toEqual(['fares-and-passes.jsonl']);
     expect(readFileSync(src).equals(before)).toBe(true);
     expect(ui.infos.at(-1)).toBe('Spillway: re-pack cancelled; no file was written.');
+  }
+
+  it('cancelled (here at the last progress report, after the core’s last check): no output, no temp file, the source untouched', async () => {
+    const before = readFileSync(src);
+    await cancelAtFirstProgress(before);
   });
 
   it('cancelled mid-run (first progress report, after 1,000 of 1,500 generated records): no output, no temp file', async () => {
@@ -178,12 +183,7 @@ describe('repackLog (stand-in vscode, real disk, real core)', () => {
     // more than 1,000 parseable lines, so the first progress report (every 1,000 records) comes mid-run
     const parseable = before.toString('utf8').split('\n').filter((l) => { try { JSON.parse(l); return true; } catch { return false; } }).length;
     expect(parseable).toBeGreaterThan(1000);
-    ui.inputs.push('512');
-    ui.cancelAfterFirstProgress = true;
-    expect(await run().go()).toBeUndefined();
-    expect(readdirSync(dir)).toEqual(['fares-and-passes.jsonl']);
-    expect(readFileSync(src).equals(before)).toBe(true);
-    expect(ui.infos.at(-1)).toBe('Spillway: re-pack cancelled; no file was written.');
+    await cancelAtFirstProgress(before);
   });
 
   it('a chosen plan and encoding name the file; a custom plan is validated by the core', async () => {
